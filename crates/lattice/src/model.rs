@@ -1,0 +1,308 @@
+//! The validated lattice model: basis, primitive vectors, bonds with resolved couplings.
+//!
+//! A [`Lattice`] is only built by the loader ([`Lattice::from_yaml_str`]) or by
+//! [`Lattice::supercell`], so every instance satisfies the rules of the lattice-file
+//! contract (see `docs/lattice-format.md`).
+
+use crate::error::LatticeError;
+
+/// A unit-cell offset along the primitive vectors; unused dimensions are zero.
+pub type Cell = [i32; 3];
+
+/// Add two cell offsets.
+pub fn cell_add(a: Cell, b: Cell) -> Cell {
+    [a[0] + b[0], a[1] + b[1], a[2] + b[2]]
+}
+
+/// Subtract two cell offsets, `a - b`.
+pub fn cell_sub(a: Cell, b: Cell) -> Cell {
+    [a[0] - b[0], a[1] - b[1], a[2] - b[2]]
+}
+
+/// One basis site of the unit cell.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Site {
+    /// Unique name within the basis.
+    pub name: String,
+    /// Cartesian position inside the cell (zero-padded to three components).
+    pub position: [f64; 3],
+}
+
+/// One bond: basis site `from` in cell 0 to basis site `to` in cell `cell`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Bond {
+    /// Basis index of the first site (in cell 0).
+    pub from: usize,
+    /// Basis index of the second site (in cell `cell`).
+    pub to: usize,
+    /// Cell offset of the second site.
+    pub cell: Cell,
+    /// The coupling's name in the file, or the literal number as written.
+    pub coupling: String,
+    /// Resolved exchange constant J (J > 0 ferromagnetic).
+    pub j: f64,
+}
+
+/// A named Kikuchi level from the file: one or more cluster shapes.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LevelSpec {
+    /// Level name (never `site` or `pair`).
+    pub name: String,
+    /// Each shape as a list of (basis index, cell offset), `block` shorthand expanded.
+    pub shapes: Vec<Vec<(usize, Cell)>>,
+}
+
+/// A known critical temperature to compare against, with its published source.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Reference {
+    /// Critical temperature in units of the file's couplings (k_B = 1).
+    pub tc: f64,
+    /// Where the value comes from (author, year, journal).
+    pub source: String,
+}
+
+/// A validated periodic lattice with its couplings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Lattice {
+    pub(crate) name: String,
+    pub(crate) description: Option<String>,
+    pub(crate) dimension: usize,
+    pub(crate) vectors: Vec<[f64; 3]>,
+    pub(crate) basis: Vec<Site>,
+    pub(crate) couplings: Vec<(String, f64)>,
+    pub(crate) field: f64,
+    pub(crate) bonds: Vec<Bond>,
+    pub(crate) levels: Vec<LevelSpec>,
+    pub(crate) reference: Option<Reference>,
+}
+
+impl Lattice {
+    /// Name used in reports.
+    pub fn name(&self) -> &str {
+        &self.name
+    }
+    /// Optional free-text description.
+    pub fn description(&self) -> Option<&str> {
+        self.description.as_deref()
+    }
+    /// Spatial dimension, 1 to 3.
+    pub fn dimension(&self) -> usize {
+        self.dimension
+    }
+    /// Primitive vectors (zero-padded to three components).
+    pub fn vectors(&self) -> &[[f64; 3]] {
+        &self.vectors
+    }
+    /// Basis sites of one cell.
+    pub fn basis(&self) -> &[Site] {
+        &self.basis
+    }
+    /// Number of basis sites per cell.
+    pub fn sites_per_cell(&self) -> usize {
+        self.basis.len()
+    }
+    /// Named couplings in file order.
+    pub fn couplings(&self) -> &[(String, f64)] {
+        &self.couplings
+    }
+    /// Uniform field h.
+    pub fn field(&self) -> f64 {
+        self.field
+    }
+    /// Bonds, each listed once.
+    pub fn bonds(&self) -> &[Bond] {
+        &self.bonds
+    }
+    /// Named cluster levels from the file.
+    pub fn level_specs(&self) -> &[LevelSpec] {
+        &self.levels
+    }
+    /// The file's `reference:`, if any.
+    pub fn reference(&self) -> Option<&Reference> {
+        self.reference.as_ref()
+    }
+
+    /// A copy with a different uniform field.
+    pub fn with_field(&self, h: f64) -> Lattice {
+        let mut l = self.clone();
+        l.field = h;
+        l
+    }
+
+    /// Basis index of the site called `name`.
+    pub fn site_index(&self, name: &str) -> Option<usize> {
+        self.basis.iter().position(|s| s.name == name)
+    }
+
+    /// Every neighbour of basis site `i` in cell 0 as (basis index, cell, J), both bond
+    /// directions included.
+    pub fn neighbours(&self, i: usize) -> Vec<(usize, Cell, f64)> {
+        let mut out = Vec::new();
+        for b in &self.bonds {
+            if b.from == i {
+                out.push((b.to, b.cell, b.j));
+            }
+            if b.to == i {
+                out.push((b.from, [-b.cell[0], -b.cell[1], -b.cell[2]], b.j));
+            }
+        }
+        out
+    }
+
+    /// Coordination number z of each basis site: the number of bonds that touch it.
+    pub fn coordination(&self) -> Vec<usize> {
+        (0..self.basis.len()).map(|i| self.neighbours(i).len()).collect()
+    }
+
+    /// The mean-field coupling matrix `J_ab = Σ_{bonds a–b} J` summed over all cell
+    /// offsets (both directions; a bond from a site to its own image counts twice on the
+    /// diagonal). Its largest eigenvalue is the site-level Tc of a ferromagnet.
+    pub fn coupling_matrix(&self) -> Vec<Vec<f64>> {
+        let n = self.basis.len();
+        let mut m = vec![vec![0.0; n]; n];
+        for b in &self.bonds {
+            m[b.from][b.to] += b.j;
+            m[b.to][b.from] += b.j;
+        }
+        m
+    }
+
+    /// Whether the infinite periodic lattice is bipartite: a two-colouring of all sites
+    /// exists with every bond joining opposite colours. A colouring is a colour per basis
+    /// site plus a parity per primitive direction (colour of (a, n) = c_a + Σ_k p_k n_k mod
+    /// 2), so odd cycles that close only through the periodic structure are caught.
+    pub fn is_bipartite(&self) -> bool {
+        let d = self.dimension;
+        let nb = self.basis.len();
+        // Unknowns: c_a (nb of them) and p_k (d). Each bond gives the GF(2) equation
+        // c_from + c_to + Σ_k p_k cell_k = 1. Solve by Gaussian elimination over GF(2).
+        let nvar = nb + d;
+        let mut rows: Vec<(Vec<u8>, u8)> = self
+            .bonds
+            .iter()
+            .map(|b| {
+                let mut r = vec![0u8; nvar];
+                r[b.from] ^= 1;
+                r[b.to] ^= 1;
+                for k in 0..d {
+                    r[nb + k] ^= (b.cell[k].rem_euclid(2)) as u8;
+                }
+                (r, 1u8)
+            })
+            .collect();
+        let mut pivot_row = 0;
+        for col in 0..nvar {
+            let Some(p) = (pivot_row..rows.len()).find(|&r| rows[r].0[col] == 1) else {
+                continue;
+            };
+            rows.swap(pivot_row, p);
+            let (prow, prhs) = rows[pivot_row].clone();
+            for (r, row) in rows.iter_mut().enumerate() {
+                if r != pivot_row && row.0[col] == 1 {
+                    for (x, y) in row.0.iter_mut().zip(&prow) {
+                        *x ^= *y;
+                    }
+                    row.1 ^= prhs;
+                }
+            }
+            pivot_row += 1;
+        }
+        !rows.iter().any(|(r, rhs)| *rhs == 1 && r.iter().all(|&x| x == 0))
+    }
+
+    /// The lattice seen with an enlarged cell of `n[0] × n[1] × n[2]` primitive cells
+    /// (unused dimensions must be 1). Basis site `a` of sub-cell `(i, j, k)` becomes basis
+    /// site `a + nb·(i + n0·(j + n1·k))`, named `a@i,j,k`. Bonds and cluster shapes are
+    /// carried over (each shape once per sub-cell offset), so order that breaks the
+    /// primitive translations (e.g. Néel order) becomes order inside the enlarged cell.
+    pub fn supercell(&self, n: [usize; 3]) -> Result<Lattice, LatticeError> {
+        for (k, &nk) in n.iter().enumerate() {
+            if nk == 0 || (k >= self.dimension && nk != 1) {
+                return Err(LatticeError::BadSupercell {
+                    detail: format!(
+                        "{}x{}x{} does not fit a {}-dimensional lattice: give {} positive factor(s), e.g. 2x2",
+                        n[0], n[1], n[2], self.dimension, self.dimension
+                    ),
+                });
+            }
+        }
+        let total = n[0] * n[1] * n[2];
+        if self.basis.len() * total > 64 {
+            return Err(LatticeError::BadSupercell {
+                detail: format!(
+                    "a supercell of {} sites per cell is larger than the 64 rungs supports",
+                    self.basis.len() * total
+                ),
+            });
+        }
+        let nb = self.basis.len();
+        let ni = [n[0] as i32, n[1] as i32, n[2] as i32];
+        // Map a primitive (basis, cell) to a supercell (basis, cell).
+        let map = |a: usize, c: Cell| -> (usize, Cell) {
+            let mut sub = [0i32; 3];
+            let mut big = [0i32; 3];
+            for k in 0..3 {
+                sub[k] = c[k].rem_euclid(ni[k]);
+                big[k] = c[k].div_euclid(ni[k]);
+            }
+            let idx = a + nb * (sub[0] as usize + n[0] * (sub[1] as usize + n[1] * sub[2] as usize));
+            (idx, big)
+        };
+        let offsets: Vec<Cell> = (0..n[2] as i32)
+            .flat_map(|k| (0..n[1] as i32).flat_map(move |j| (0..n[0] as i32).map(move |i| [i, j, k])))
+            .collect();
+        let mut basis = Vec::with_capacity(nb * total);
+        for off in &offsets {
+            for s in &self.basis {
+                let mut pos = s.position;
+                for (k, v) in self.vectors.iter().enumerate() {
+                    for (x, vx) in pos.iter_mut().zip(v) {
+                        *x += off[k] as f64 * vx;
+                    }
+                }
+                basis.push(Site { name: format!("{}@{},{},{}", s.name, off[0], off[1], off[2]), position: pos });
+            }
+        }
+        let mut bonds = Vec::new();
+        for off in &offsets {
+            for b in &self.bonds {
+                let (f, fc) = map(b.from, *off);
+                let (t, tc) = map(b.to, cell_add(*off, b.cell));
+                bonds.push(Bond { from: f, to: t, cell: cell_sub(tc, fc), coupling: b.coupling.clone(), j: b.j });
+            }
+        }
+        let levels = self
+            .levels
+            .iter()
+            .map(|l| LevelSpec {
+                name: l.name.clone(),
+                shapes: offsets
+                    .iter()
+                    .flat_map(|off| {
+                        l.shapes.iter().map(move |shape| {
+                            shape.iter().map(|&(a, c)| map(a, cell_add(c, *off))).collect::<Vec<_>>()
+                        })
+                    })
+                    .collect(),
+            })
+            .collect();
+        let mut vectors = self.vectors.clone();
+        for (k, v) in vectors.iter_mut().enumerate() {
+            for x in v.iter_mut() {
+                *x *= n[k] as f64;
+            }
+        }
+        Ok(Lattice {
+            name: format!("{} ({}x{}x{} cell)", self.name, n[0], n[1], n[2]),
+            description: self.description.clone(),
+            dimension: self.dimension,
+            vectors,
+            basis,
+            couplings: self.couplings.clone(),
+            field: self.field,
+            bonds,
+            levels,
+            reference: self.reference.clone(),
+        })
+    }
+}

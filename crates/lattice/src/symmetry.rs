@@ -1,0 +1,1 @@
+//! Point-group symmetries of a lattice.

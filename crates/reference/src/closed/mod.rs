@@ -1,0 +1,1 @@
+//! Closed-form exact results.

@@ -1,0 +1,1 @@
+//! Exact enumeration of small tori.

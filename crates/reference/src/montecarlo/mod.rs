@@ -1,0 +1,1 @@
+//! Monte Carlo on finite tori.

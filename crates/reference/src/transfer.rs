@@ -1,0 +1,1 @@
+//! Transfer matrices on strips.
