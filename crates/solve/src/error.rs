@@ -1,0 +1,49 @@
+//! Typed errors of the engine: each says where (level, T, h) and how far it got.
+
+use thiserror::Error;
+
+/// A computation that did not succeed.
+#[derive(Debug, Error, Clone, PartialEq)]
+#[non_exhaustive]
+pub enum SolveError {
+    /// Newton and its fallback stopped before the gradient norm reached the tolerance.
+    #[error("level `{level}` at T = {t}, h = {h}: equilibrium not reached after {iterations} iterations (gradient norm {gradient_norm:.3e}, tolerance {tolerance:.1e}); try a temperature path that starts farther from Tc")]
+    NotConverged {
+        /// Level name.
+        level: String,
+        /// Temperature.
+        t: f64,
+        /// Field.
+        h: f64,
+        /// Iterations done.
+        iterations: usize,
+        /// Largest gradient component when it stopped.
+        gradient_norm: f64,
+        /// The tolerance asked for.
+        tolerance: f64,
+    },
+    /// A starting point with a non-positive cluster probability.
+    #[error("level `{level}` at T = {t}, h = {h}: the starting point has a non-positive cluster probability")]
+    InfeasibleStart {
+        /// Level name.
+        level: String,
+        /// Temperature.
+        t: f64,
+        /// Field.
+        h: f64,
+    },
+    /// A temperature that is not a positive finite number.
+    #[error("temperature {t} is not a positive finite number; give T > 0 in units of the coupling")]
+    BadTemperature {
+        /// The value given.
+        t: f64,
+    },
+    /// The Tc search failed.
+    #[error("level `{level}`: Tc search failed: {detail}")]
+    TcSearch {
+        /// Level name.
+        level: String,
+        /// What went wrong.
+        detail: String,
+    },
+}
