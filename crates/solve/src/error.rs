@@ -38,6 +38,18 @@ pub enum SolveError {
         /// The value given.
         t: f64,
     },
+    /// A level whose dense Hessian would not fit in memory.
+    #[error("level `{level}` has {variables} correlation variables: its dense Hessian would need {gib:.1} GiB, above the engine's limit of {limit} variables; use a smaller cluster")]
+    TooLarge {
+        /// Level name.
+        level: String,
+        /// Correlation variables of the level.
+        variables: usize,
+        /// Memory the dense Hessian would take.
+        gib: f64,
+        /// The limit.
+        limit: usize,
+    },
     /// The Tc search failed.
     #[error("level `{level}`: Tc search failed: {detail}")]
     TcSearch {

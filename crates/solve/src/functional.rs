@@ -16,6 +16,24 @@ use rungs_lattice::{BondTerm, Level};
 
 use crate::wht::wht;
 
+/// Most correlation variables a level may have for the dense engine (a 6000² Hessian is
+/// 288 MB; the square 3×3 block has 400 variables, the 4×4 block 57,856).
+pub const MAX_DENSE_VARIABLES: usize = 6000;
+
+/// Refuse a level too large for the dense engine, before any memory is spent.
+pub fn check_size(level: &Level) -> Result<(), crate::error::SolveError> {
+    let n = level.variables.len();
+    if n > MAX_DENSE_VARIABLES {
+        return Err(crate::error::SolveError::TooLarge {
+            level: level.name.clone(),
+            variables: n,
+            gib: (n * n * 8) as f64 / (1u64 << 30) as f64,
+            limit: MAX_DENSE_VARIABLES,
+        });
+    }
+    Ok(())
+}
+
 /// One region's part of the entropy: its weight `a_γ` and the variable of each subset.
 #[derive(Debug, Clone)]
 struct RegionTerm {

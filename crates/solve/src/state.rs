@@ -57,6 +57,7 @@ pub fn equilibrium(level: &Level, t: f64, h: f64, warm: Option<&[f64]>) -> Resul
     if !(t.is_finite() && t > 0.0) {
         return Err(SolveError::BadTemperature { t });
     }
+    crate::functional::check_size(level)?;
     let f = Functional::new(level, t, h);
     let opts = NewtonOptions::default();
     let all = Block::all(level);

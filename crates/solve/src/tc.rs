@@ -153,6 +153,7 @@ impl CostFunction for Lowest<'_, '_> {
 
 /// Find the critical temperature of `level` (built from `lattice`) at h = 0.
 pub fn critical_temperature(lattice: &Lattice, level: &Level, options: TcOptions) -> Result<CriticalPoint, SolveError> {
+    crate::functional::check_size(level)?;
     let start = Instant::now();
     let probe = Probe::new(level);
     let name = level.name.clone();

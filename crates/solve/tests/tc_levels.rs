@@ -144,3 +144,11 @@ fn pair_level_amplitude_is_half_tc_on_the_square_lattice() {
     assert!((amp / (tc / 2.0) - 1.0).abs() < 1e-5, "amplitude {amp} vs Tc/2 = {}", tc / 2.0);
 }
 
+
+#[test]
+fn a_level_too_large_for_the_dense_engine_is_refused_up_front() {
+    let l = shipped("square");
+    let lv = level(&l, "block4");
+    let e = critical_temperature(&l, &lv, TcOptions::default()).unwrap_err();
+    assert!(matches!(e, rungs_solve::SolveError::TooLarge { variables: 57_856, .. }), "{e}");
+}
