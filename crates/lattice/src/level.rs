@@ -93,7 +93,11 @@ impl Level {
     /// Sites of the largest maximal cluster of level `name`, computed without building
     /// the level.
     pub fn max_cluster_sites_of(lattice: &Lattice, name: &str) -> Result<usize, LatticeError> {
-        Ok(Self::maximal_clusters(lattice, name)?.iter().map(Cluster::len).max().unwrap_or(1))
+        Ok(Self::maximal_clusters(lattice, name)?
+            .iter()
+            .map(Cluster::len)
+            .max()
+            .unwrap_or(1))
     }
 
     /// Sites of the largest maximal cluster.
@@ -115,7 +119,9 @@ impl Level {
         let bond_cluster =
             |b: &crate::model::Bond| Cluster::canonical([(b.from, [0; 3]), (b.to, b.cell)]);
         let mut clusters: Vec<Cluster> = match name {
-            "site" => (0..lattice.sites_per_cell()).map(|a| Cluster::canonical([(a, [0; 3])])).collect(),
+            "site" => (0..lattice.sites_per_cell())
+                .map(|a| Cluster::canonical([(a, [0; 3])]))
+                .collect(),
             "pair" => {
                 let mut v: Vec<Cluster> = lattice.bonds().iter().map(bond_cluster).collect();
                 // A site that no bond touches is its own maximal cluster.
@@ -127,11 +133,19 @@ impl Level {
                 v
             }
             _ => {
-                let spec = lattice.level_specs().iter().find(|l| l.name == name).ok_or_else(|| {
-                    LatticeError::UnknownLevel { name: name.to_string(), known: Self::names(lattice).join(", ") }
-                })?;
-                let shapes: Vec<Cluster> =
-                    spec.shapes.iter().map(|s| Cluster::canonical(s.iter().copied())).collect();
+                let spec = lattice
+                    .level_specs()
+                    .iter()
+                    .find(|l| l.name == name)
+                    .ok_or_else(|| LatticeError::UnknownLevel {
+                        name: name.to_string(),
+                        known: Self::names(lattice).join(", "),
+                    })?;
+                let shapes: Vec<Cluster> = spec
+                    .shapes
+                    .iter()
+                    .map(|s| Cluster::canonical(s.iter().copied()))
+                    .collect();
                 for s in &shapes {
                     if s.len() > MAX_CLUSTER_SITES {
                         return Err(LatticeError::ClusterTooLarge {
@@ -160,7 +174,10 @@ impl Level {
         clusters.dedup();
         // Keep only clusters not contained in a translate of another one.
         let all = clusters.clone();
-        clusters.retain(|c| !all.iter().any(|d| d != c && d.len() > c.len() && contained_in_translate(c, d)));
+        clusters.retain(|c| {
+            !all.iter()
+                .any(|d| d != c && d.len() > c.len() && contained_in_translate(c, d))
+        });
         Ok(clusters)
     }
 
@@ -219,7 +236,8 @@ impl Level {
         }
         let mut variables: Vec<Cluster> = var_set.into_iter().collect();
         variables.sort_by(|a, b| a.len().cmp(&b.len()).then(a.cmp(b)));
-        let index: HashMap<&Cluster, usize> = variables.iter().enumerate().map(|(i, c)| (c, i)).collect();
+        let index: HashMap<&Cluster, usize> =
+            variables.iter().enumerate().map(|(i, c)| (c, i)).collect();
         let regions = orbits
             .iter()
             .zip(&coeff)
@@ -231,7 +249,11 @@ impl Level {
                         *slot = index[&c.subset(mask as u64)] as u32;
                     }
                 }
-                Region { cluster: c.clone(), coefficient: a, subset_vars }
+                Region {
+                    cluster: c.clone(),
+                    coefficient: a,
+                    subset_vars,
+                }
             })
             .collect();
         let site_vars: Vec<usize> = (0..lattice.sites_per_cell())
@@ -244,7 +266,11 @@ impl Level {
                 let bc = Cluster::canonical([(b.from, [0; 3]), (b.to, b.cell)]);
                 match index.get(&bc) {
                     Some(&var) => BondTerm::Correlated { var, j: b.j },
-                    None => BondTerm::Factorised { a: site_vars[b.from], b: site_vars[b.to], j: b.j },
+                    None => BondTerm::Factorised {
+                        a: site_vars[b.from],
+                        b: site_vars[b.to],
+                        j: b.j,
+                    },
                 }
             })
             .collect();
@@ -259,9 +285,66 @@ impl Level {
         })
     }
 
+    /// The same level on orbit variables: variable `v` becomes `orbit_of[v]` (one
+    /// representative cluster per orbit). The engine run on it computes `F(P y)` with
+    /// `P` the orbit-expansion matrix, so its gradient is `Pᵀ∇F` and its Hessian
+    /// `PᵀHP`: exact for states that share the symmetry.
+    pub fn reduced(&self, orbit_of: &[usize]) -> Level {
+        let n_orbits = orbit_of.iter().copied().max().map_or(0, |m| m + 1);
+        let mut rep: Vec<Option<Cluster>> = vec![None; n_orbits];
+        for (v, &o) in orbit_of.iter().enumerate() {
+            if rep[o].is_none() {
+                rep[o] = Some(self.variables[v].clone());
+            }
+        }
+        let variables = rep.into_iter().flatten().collect();
+        let map = |v: usize| orbit_of[v];
+        Level {
+            name: self.name.clone(),
+            sites_per_cell: self.sites_per_cell,
+            maximal: self.maximal.clone(),
+            regions: self
+                .regions
+                .iter()
+                .map(|r| Region {
+                    cluster: r.cluster.clone(),
+                    coefficient: r.coefficient,
+                    subset_vars: r
+                        .subset_vars
+                        .iter()
+                        .map(|&v| {
+                            if v == u32::MAX {
+                                v
+                            } else {
+                                map(v as usize) as u32
+                            }
+                        })
+                        .collect(),
+                })
+                .collect(),
+            variables,
+            site_vars: self.site_vars.iter().map(|&v| map(v)).collect(),
+            bond_terms: self
+                .bond_terms
+                .iter()
+                .map(|b| match *b {
+                    BondTerm::Correlated { var, j } => BondTerm::Correlated { var: map(var), j },
+                    BondTerm::Factorised { a, b, j } => BondTerm::Factorised {
+                        a: map(a),
+                        b: map(b),
+                        j,
+                    },
+                })
+                .collect(),
+        }
+    }
+
     /// The Kikuchi sum rule `Σ_γ a_γ |γ|`, which must equal the sites per cell.
     pub fn sum_rule(&self) -> i64 {
-        self.regions.iter().map(|r| r.coefficient * r.cluster.len() as i64).sum()
+        self.regions
+            .iter()
+            .map(|r| r.coefficient * r.cluster.len() as i64)
+            .sum()
     }
 }
 

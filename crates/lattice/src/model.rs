@@ -129,6 +129,53 @@ impl Lattice {
         l
     }
 
+    /// A copy with one more named level: every basis site of an `n[0] × n[1] × n[2]`
+    /// block of cells (unused dimensions 1), e.g. the extra rungs of `ladder --up-to`.
+    /// Refused if the name is taken or reserved, or the block exceeds the engine's limit.
+    pub fn with_block_level(&self, name: &str, n: [usize; 3]) -> Result<Lattice, LatticeError> {
+        let sites = self.basis.len() * n[0] * n[1] * n[2];
+        if name == "site" || name == "pair" || self.levels.iter().any(|l| l.name == name) {
+            return Err(LatticeError::BadLevelName {
+                name: name.to_string(),
+            });
+        }
+        if n.iter()
+            .enumerate()
+            .any(|(k, &nk)| nk == 0 || (k >= self.dimension && nk != 1))
+            || sites < 2
+        {
+            return Err(LatticeError::BadSupercell {
+                detail: format!(
+                    "block {}x{}x{} does not fit a {}-dimensional lattice",
+                    n[0], n[1], n[2], self.dimension
+                ),
+            });
+        }
+        if sites > crate::level::MAX_CLUSTER_SITES {
+            return Err(LatticeError::ClusterTooLarge {
+                level: name.to_string(),
+                sites,
+                limit: crate::level::MAX_CLUSTER_SITES,
+            });
+        }
+        let mut shape = Vec::with_capacity(sites);
+        for k in 0..n[2] as i32 {
+            for j in 0..n[1] as i32 {
+                for i in 0..n[0] as i32 {
+                    for a in 0..self.basis.len() {
+                        shape.push((a, [i, j, k]));
+                    }
+                }
+            }
+        }
+        let mut l = self.clone();
+        l.levels.push(LevelSpec {
+            name: name.to_string(),
+            shapes: vec![shape],
+        });
+        Ok(l)
+    }
+
     /// Basis index of the site called `name`.
     pub fn site_index(&self, name: &str) -> Option<usize> {
         self.basis.iter().position(|s| s.name == name)
@@ -151,7 +198,9 @@ impl Lattice {
 
     /// Coordination number z of each basis site: the number of bonds that touch it.
     pub fn coordination(&self) -> Vec<usize> {
-        (0..self.basis.len()).map(|i| self.neighbours(i).len()).collect()
+        (0..self.basis.len())
+            .map(|i| self.neighbours(i).len())
+            .collect()
     }
 
     /// The mean-field coupling matrix `J_ab = Σ_{bonds a–b} J` summed over all cell
@@ -207,7 +256,9 @@ impl Lattice {
             }
             pivot_row += 1;
         }
-        !rows.iter().any(|(r, rhs)| *rhs == 1 && r.iter().all(|&x| x == 0))
+        !rows
+            .iter()
+            .any(|(r, rhs)| *rhs == 1 && r.iter().all(|&x| x == 0))
     }
 
     /// The lattice seen with an enlarged cell of `n[0] × n[1] × n[2]` primitive cells
@@ -245,11 +296,14 @@ impl Lattice {
                 sub[k] = c[k].rem_euclid(ni[k]);
                 big[k] = c[k].div_euclid(ni[k]);
             }
-            let idx = a + nb * (sub[0] as usize + n[0] * (sub[1] as usize + n[1] * sub[2] as usize));
+            let idx =
+                a + nb * (sub[0] as usize + n[0] * (sub[1] as usize + n[1] * sub[2] as usize));
             (idx, big)
         };
         let offsets: Vec<Cell> = (0..n[2] as i32)
-            .flat_map(|k| (0..n[1] as i32).flat_map(move |j| (0..n[0] as i32).map(move |i| [i, j, k])))
+            .flat_map(|k| {
+                (0..n[1] as i32).flat_map(move |j| (0..n[0] as i32).map(move |i| [i, j, k]))
+            })
             .collect();
         let mut basis = Vec::with_capacity(nb * total);
         for off in &offsets {
@@ -260,7 +314,10 @@ impl Lattice {
                         *x += off[k] as f64 * vx;
                     }
                 }
-                basis.push(Site { name: format!("{}@{},{},{}", s.name, off[0], off[1], off[2]), position: pos });
+                basis.push(Site {
+                    name: format!("{}@{},{},{}", s.name, off[0], off[1], off[2]),
+                    position: pos,
+                });
             }
         }
         let mut bonds = Vec::new();
@@ -268,7 +325,13 @@ impl Lattice {
             for b in &self.bonds {
                 let (f, fc) = map(b.from, *off);
                 let (t, tc) = map(b.to, cell_add(*off, b.cell));
-                bonds.push(Bond { from: f, to: t, cell: cell_sub(tc, fc), coupling: b.coupling.clone(), j: b.j });
+                bonds.push(Bond {
+                    from: f,
+                    to: t,
+                    cell: cell_sub(tc, fc),
+                    coupling: b.coupling.clone(),
+                    j: b.j,
+                });
             }
         }
         let levels = self
@@ -280,7 +343,10 @@ impl Lattice {
                     .iter()
                     .flat_map(|off| {
                         l.shapes.iter().map(move |shape| {
-                            shape.iter().map(|&(a, c)| map(a, cell_add(c, *off))).collect::<Vec<_>>()
+                            shape
+                                .iter()
+                                .map(|&(a, c)| map(a, cell_add(c, *off)))
+                                .collect::<Vec<_>>()
                         })
                     })
                     .collect(),

@@ -1,1 +1,254 @@
-//! Point-group symmetries of a lattice.
+//! Point-group symmetries of a lattice, and the orbits they make of a level's
+//! correlation variables.
+//!
+//! A symmetry is an affine map of sites `(a, n) ↦ (π(a), R n + t_a)` (R an integer
+//! matrix with det ±1 acting on cell offsets, π a permutation of the basis) that maps
+//! every bond onto a bond with the same coupling. Such maps, found by a backtracking
+//! search over R with entries in {−1, 0, 1}, include rotations, reflections and
+//! inversions and, on a supercell, the primitive translations that permute its basis.
+//! The free energy is invariant under them, so a state that shares the symmetry
+//! (the paramagnet at h = 0, uniform order) can be solved on orbit variables only.
+
+use std::collections::{BTreeSet, HashMap};
+
+use crate::cluster::Cluster;
+use crate::level::Level;
+use crate::model::{Cell, Lattice};
+
+/// One symmetry operation: `(a, n) ↦ (perm[a], rot · n + shift[a])`.
+#[derive(Debug, Clone, PartialEq, Eq, Hash)]
+pub struct SiteMap {
+    /// Integer matrix acting on cell offsets (rows: output components).
+    pub rot: [[i32; 3]; 3],
+    /// Image of each basis site.
+    pub perm: Vec<usize>,
+    /// Cell offset added for each basis site.
+    pub shift: Vec<Cell>,
+}
+
+impl SiteMap {
+    /// The image of site `(a, c)`.
+    pub fn apply(&self, a: usize, c: Cell) -> (usize, Cell) {
+        let r = &self.rot;
+        let mut out = self.shift[a];
+        for (i, o) in out.iter_mut().enumerate() {
+            *o += r[i][0] * c[0] + r[i][1] * c[1] + r[i][2] * c[2];
+        }
+        (self.perm[a], out)
+    }
+
+    /// The image of a cluster, canonicalised.
+    pub fn image(&self, cluster: &Cluster) -> Cluster {
+        Cluster::canonical(cluster.sites().map(|(a, c)| self.apply(a, c)))
+    }
+}
+
+fn det3(m: &[[i32; 3]; 3]) -> i32 {
+    m[0][0] * (m[1][1] * m[2][2] - m[1][2] * m[2][1])
+        - m[0][1] * (m[1][0] * m[2][2] - m[1][2] * m[2][0])
+        + m[0][2] * (m[1][0] * m[2][1] - m[1][1] * m[2][0])
+}
+
+/// Every candidate R: entries in {−1, 0, 1} on the lattice's dimensions, identity on the
+/// unused ones, det ±1.
+fn candidate_rotations(d: usize) -> Vec<[[i32; 3]; 3]> {
+    let cells = d * d;
+    let mut out = Vec::new();
+    for code in 0..3usize.pow(cells as u32) {
+        let mut m = [[0i32; 3]; 3];
+        for k in d..3 {
+            m[k][k] = 1;
+        }
+        let mut c = code;
+        for i in 0..d {
+            for j in 0..d {
+                m[i][j] = (c % 3) as i32 - 1;
+                c /= 3;
+            }
+        }
+        if det3(&m).abs() == 1 {
+            out.push(m);
+        }
+    }
+    out
+}
+
+/// Bonds as canonical two-site clusters with their coupling (bit pattern, so equal
+/// couplings compare equal).
+fn bond_table(lattice: &Lattice) -> HashMap<Cluster, u64> {
+    lattice
+        .bonds()
+        .iter()
+        .map(|b| {
+            (
+                Cluster::canonical([(b.from, [0; 3]), (b.to, b.cell)]),
+                b.j.to_bits(),
+            )
+        })
+        .collect()
+}
+
+/// All symmetry operations of `lattice` (the identity first). Lattices whose basis is
+/// not connected through bonds get the identity only.
+pub fn point_group(lattice: &Lattice) -> Vec<SiteMap> {
+    let nb = lattice.sites_per_cell();
+    let identity = SiteMap {
+        rot: [[1, 0, 0], [0, 1, 0], [0, 0, 1]],
+        perm: (0..nb).collect(),
+        shift: vec![[0; 3]; nb],
+    };
+    // BFS order of the basis: each later site reached from an earlier one by a bond.
+    let mut parent: Vec<Option<(usize, Cell, u64)>> = vec![None; nb];
+    let mut order = vec![0usize];
+    let mut seen = vec![false; nb];
+    seen[0] = true;
+    let mut k = 0;
+    while k < order.len() {
+        let p = order[k];
+        for (b, c, j) in lattice.neighbours(p) {
+            if !seen[b] {
+                seen[b] = true;
+                parent[b] = Some((p, c, j.to_bits()));
+                order.push(b);
+            }
+        }
+        k += 1;
+    }
+    if order.len() < nb {
+        return vec![identity];
+    }
+    let bonds = bond_table(lattice);
+    let neighbours: Vec<Vec<(usize, Cell, u64)>> = (0..nb)
+        .map(|a| {
+            lattice
+                .neighbours(a)
+                .into_iter()
+                .map(|(b, c, j)| (b, c, j.to_bits()))
+                .collect()
+        })
+        .collect();
+    let mut found: BTreeSet<(Vec<usize>, Vec<Cell>, [[i32; 3]; 3])> = BTreeSet::new();
+    for rot in candidate_rotations(lattice.dimension()) {
+        for first in 0..nb {
+            let mut map = SiteMap {
+                rot,
+                perm: vec![usize::MAX; nb],
+                shift: vec![[0; 3]; nb],
+            };
+            map.perm[0] = first;
+            search(
+                1,
+                &order,
+                &parent,
+                &neighbours,
+                &bonds,
+                &mut map,
+                &mut found,
+            );
+        }
+    }
+    let mut ops = vec![identity.clone()];
+    for (perm, shift, rot) in found {
+        let op = SiteMap { rot, perm, shift };
+        if op != identity {
+            ops.push(op);
+        }
+    }
+    ops
+}
+
+fn search(
+    k: usize,
+    order: &[usize],
+    parent: &[Option<(usize, Cell, u64)>],
+    neighbours: &[Vec<(usize, Cell, u64)>],
+    bonds: &HashMap<Cluster, u64>,
+    map: &mut SiteMap,
+    found: &mut BTreeSet<(Vec<usize>, Vec<Cell>, [[i32; 3]; 3])>,
+) {
+    if k == order.len() {
+        // Every bond must land on a bond with the same coupling.
+        let ok = bonds
+            .iter()
+            .all(|(cl, j)| bonds.get(&map.image(cl)) == Some(j));
+        if ok {
+            found.insert((map.perm.clone(), map.shift.clone(), map.rot));
+        }
+        return;
+    }
+    let a = order[k];
+    let Some((p, c, j)) = parent[a] else { return };
+    // (a, c) is a neighbour of (p, 0): its image must be a neighbour of p's image.
+    let (pi, pc) = (map.perm[p], map.shift[p]);
+    let mut rc = [0i32; 3];
+    for (i, r) in rc.iter_mut().enumerate() {
+        *r = map.rot[i][0] * c[0] + map.rot[i][1] * c[1] + map.rot[i][2] * c[2];
+    }
+    for &(b, cb, jb) in &neighbours[pi] {
+        if jb != j || map.perm.contains(&b) {
+            continue;
+        }
+        map.perm[a] = b;
+        map.shift[a] = [
+            pc[0] + cb[0] - rc[0],
+            pc[1] + cb[1] - rc[1],
+            pc[2] + cb[2] - rc[2],
+        ];
+        search(k + 1, order, parent, neighbours, bonds, map, found);
+        map.perm[a] = usize::MAX;
+    }
+}
+
+/// The operations of `ops` that map the level's set of maximal clusters onto itself.
+pub fn level_group(level: &Level, ops: &[SiteMap]) -> Vec<SiteMap> {
+    let maximal: BTreeSet<&Cluster> = level.maximal.iter().collect();
+    ops.iter()
+        .filter(|op| level.maximal.iter().all(|m| maximal.contains(&op.image(m))))
+        .cloned()
+        .collect()
+}
+
+/// Orbit id of every correlation variable under `ops` (ids dense, in order of first
+/// appearance).
+pub fn variable_orbits(level: &Level, ops: &[SiteMap]) -> Vec<usize> {
+    let index: HashMap<&Cluster, usize> = level
+        .variables
+        .iter()
+        .enumerate()
+        .map(|(i, c)| (c, i))
+        .collect();
+    let n = level.variables.len();
+    let mut root: Vec<usize> = (0..n).collect();
+    fn find(root: &mut [usize], mut v: usize) -> usize {
+        while root[v] != v {
+            root[v] = root[root[v]];
+            v = root[v];
+        }
+        v
+    }
+    for (v, c) in level.variables.iter().enumerate() {
+        for op in ops {
+            if let Some(&w) = index.get(&op.image(c)) {
+                let (a, b) = (find(&mut root, v), find(&mut root, w));
+                if a != b {
+                    root[a.max(b)] = a.min(b);
+                }
+            }
+        }
+    }
+    let mut id = vec![usize::MAX; n];
+    let mut next = 0;
+    let mut out = vec![0; n];
+    for v in 0..n {
+        let r = find(&mut root, v);
+        if id[r] == usize::MAX {
+            id[r] = next;
+            next += 1;
+        }
+        out[v] = id[r];
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests;

@@ -76,7 +76,10 @@ pub struct TcOptions {
 
 impl Default for TcOptions {
     fn default() -> Self {
-        TcOptions { relative_tolerance: 1e-9, lowest_fraction: 0.02 }
+        TcOptions {
+            relative_tolerance: 1e-9,
+            lowest_fraction: 0.02,
+        }
     }
 }
 
@@ -86,7 +89,9 @@ pub fn mean_field_scale(lattice: &Lattice) -> f64 {
     let m = lattice.coupling_matrix();
     let n = m.len();
     let mat = DMatrix::from_fn(n, n, |i, j| m[i][j]);
-    mat.symmetric_eigenvalues().iter().fold(0.0f64, |a, &b| a.max(b.abs()))
+    mat.symmetric_eigenvalues()
+        .iter()
+        .fold(0.0f64, |a, &b| a.max(b.abs()))
 }
 
 /// Paramagnetic solutions along T with warm starts, and the odd-sector spectrum there.
@@ -102,19 +107,31 @@ impl<'a> Probe<'a> {
     fn new(level: &'a Level) -> Probe<'a> {
         let f = Functional::new(level, 1.0, 0.0);
         let warm = product_state(&f, 0.0);
-        Probe { even: Block::even(level), odd: Block::odd(level), warm: RefCell::new(warm), f, error: RefCell::new(None) }
+        Probe {
+            even: Block::even(level),
+            odd: Block::odd(level),
+            warm: RefCell::new(warm),
+            f,
+            error: RefCell::new(None),
+        }
     }
 
     /// The odd-sector Hessian at the paramagnetic solution at T.
     fn odd_hessian(&self, t: f64) -> Result<DMatrix<f64>, SolveError> {
         let f = self.f.at(t, 0.0);
         let start = self.warm.borrow().clone();
-        let start = if f.feasible(&start) { start } else { product_state(&f, 0.0) };
+        let start = if f.feasible(&start) {
+            start
+        } else {
+            product_state(&f, 0.0)
+        };
         let sol = minimise(&f, start, &self.even, NewtonOptions::default())?;
-        let h = f.hessian_block(&sol.x, &self.odd.vars, &self.odd.pos).ok_or_else(|| SolveError::TcSearch {
-            level: self.f.level().name.clone(),
-            detail: format!("paramagnetic solution at T = {t} left the feasible region"),
-        })?;
+        let h = f
+            .hessian_block(&sol.x, &self.odd.vars, &self.odd.pos)
+            .ok_or_else(|| SolveError::TcSearch {
+                level: self.f.level().name.clone(),
+                detail: format!("paramagnetic solution at T = {t} left the feasible region"),
+            })?;
         *self.warm.borrow_mut() = sol.x;
         Ok(h)
     }
@@ -128,7 +145,10 @@ impl<'a> Probe<'a> {
             .iter()
             .enumerate()
             .min_by(|a, b| a.1.total_cmp(b.1))
-            .ok_or_else(|| SolveError::TcSearch { level: self.f.level().name.clone(), detail: "empty odd sector".into() })?;
+            .ok_or_else(|| SolveError::TcSearch {
+                level: self.f.level().name.clone(),
+                detail: "empty odd sector".into(),
+            })?;
         Ok((lam, eig.eigenvectors.column(k).into_owned()))
     }
 }
@@ -152,7 +172,11 @@ impl CostFunction for Lowest<'_, '_> {
 }
 
 /// Find the critical temperature of `level` (built from `lattice`) at h = 0.
-pub fn critical_temperature(lattice: &Lattice, level: &Level, options: TcOptions) -> Result<CriticalPoint, SolveError> {
+pub fn critical_temperature(
+    lattice: &Lattice,
+    level: &Level,
+    options: TcOptions,
+) -> Result<CriticalPoint, SolveError> {
     crate::functional::check_size(level)?;
     let start = Instant::now();
     let probe = Probe::new(level);
@@ -167,18 +191,36 @@ pub fn critical_temperature(lattice: &Lattice, level: &Level, options: TcOptions
         grow += 1;
     }
     if lam_hi <= 0.0 {
-        return Err(SolveError::TcSearch { level: name, detail: format!("the paramagnetic solution is unstable even at T = {t_hi}") });
+        return Err(SolveError::TcSearch {
+            level: name,
+            detail: format!("the paramagnetic solution is unstable even at T = {t_hi}"),
+        });
     }
     let t_min = scale * options.lowest_fraction;
     let mut t_lo = t_hi;
     let mut found = false;
+    // Step down, guided by the secant of λ(T) (nearly linear near Tc): aim a little
+    // below the predicted zero, never more than halving T or less than a 2% step.
+    let mut prev: Option<(f64, f64)> = None;
+    let mut lam_cur = lam_hi;
     while t_lo > t_min {
-        let t_next = (t_lo * 0.9).max(t_min);
-        let (lam, scale_h) = match probe.odd_hessian(t_next) {
+        let mut t_next = t_lo * 0.9;
+        if let Some((tp, lp)) = prev {
+            let slope = (lp - lam_cur) / (tp - t_lo);
+            if slope > 0.0 {
+                let zero = t_lo - lam_cur / slope;
+                t_next = (zero - 0.01 * t_lo).clamp(0.5 * t_lo, 0.98 * t_lo);
+            }
+        }
+        let t_next = t_next.max(t_min);
+        let (lam, noise) = match probe.odd_hessian(t_next) {
             Ok(h) => {
-                let scale_h = probe.f.at(t_next, 0.0).hessian_rounding(&probe.warm.borrow());
+                let noise = probe
+                    .f
+                    .at(t_next, 0.0)
+                    .hessian_rounding(&probe.warm.borrow());
                 match h.symmetric_eigenvalues().iter().copied().reduce(f64::min) {
-                    Some(l) => (l, scale_h),
+                    Some(l) => (l, noise),
                     None => break,
                 }
             }
@@ -186,7 +228,7 @@ pub fn critical_temperature(lattice: &Lattice, level: &Level, options: TcOptions
         };
         // An eigenvalue within rounding of zero (e.g. the chain, where it vanishes only
         // as e^{-2J/T}) cannot say which side of Tc we are on: stop searching there.
-        if lam.abs() < scale_h {
+        if lam.abs() < noise {
             t_lo = t_next;
             break;
         }
@@ -195,6 +237,8 @@ pub fn critical_temperature(lattice: &Lattice, level: &Level, options: TcOptions
             t_lo = t_next;
             break;
         }
+        prev = Some((t_lo, lam_cur));
+        lam_cur = lam;
         t_hi = t_next;
         t_lo = t_next;
         if t_next <= t_min {
@@ -217,11 +261,20 @@ pub fn critical_temperature(lattice: &Lattice, level: &Level, options: TcOptions
     // Warm start from the upper end for the root finder.
     probe.odd_hessian(t_hi)?;
     let solver = BrentRoot::new(t_lo, t_hi, options.relative_tolerance * t_hi);
-    let result = Executor::new(Lowest(&probe), solver).configure(|s| s.max_iters(200)).run();
+    let result = Executor::new(Lowest(&probe), solver)
+        .configure(|s| s.max_iters(200))
+        .run();
     let tc = match result {
         Ok(r) => r.state.best_param.unwrap_or(0.5 * (t_lo + t_hi)),
         Err(e) => {
-            return Err(probe.error.borrow_mut().take().unwrap_or(SolveError::TcSearch { level: name, detail: e.to_string() }));
+            return Err(probe
+                .error
+                .borrow_mut()
+                .take()
+                .unwrap_or(SolveError::TcSearch {
+                    level: name,
+                    detail: e.to_string(),
+                }));
         }
     };
     // The critical mode and the amplitude χ̄ = (e·u)² / (N_b dλ/dT).
@@ -232,7 +285,11 @@ pub fn critical_temperature(lattice: &Lattice, level: &Level, options: TcOptions
         Ok(u.dot(&(&h * &u)))
     };
     let slope = (rayleigh(tc + delta)? - rayleigh(tc - delta)?) / (2.0 * delta);
-    let site_components: Vec<f64> = level.site_vars.iter().map(|&v| u[probe.odd.pos[v]]).collect();
+    let site_components: Vec<f64> = level
+        .site_vars
+        .iter()
+        .map(|&v| u[probe.odd.pos[v]])
+        .collect();
     let e_dot_u: f64 = site_components.iter().sum();
     let amplitude = (slope > 0.0).then(|| e_dot_u * e_dot_u / (nb as f64 * slope));
     let (mode, kind) = classify(&site_components);
@@ -254,8 +311,15 @@ fn classify(components: &[f64]) -> (Vec<f64>, ModeKind) {
     if big < 1e-8 {
         return (vec![0.0; components.len()], ModeKind::Hidden);
     }
-    let sign = components.iter().find(|c| c.abs() > 1e-6 * big).map_or(1.0, |c| c.signum());
+    let sign = components
+        .iter()
+        .find(|c| c.abs() > 1e-6 * big)
+        .map_or(1.0, |c| c.signum());
     let mode: Vec<f64> = components.iter().map(|c| sign * c / big).collect();
-    let kind = if mode.iter().all(|&c| c > -1e-9) { ModeKind::Uniform } else { ModeKind::Staggered };
+    let kind = if mode.iter().all(|&c| c > -1e-9) {
+        ModeKind::Uniform
+    } else {
+        ModeKind::Staggered
+    };
     (mode, kind)
 }

@@ -1,0 +1,149 @@
+//! Point groups of standard lattices (group orders: common practice) and orbit counts.
+
+use super::*;
+use crate::level::Level;
+use crate::model::{Bond, LevelSpec, Site};
+
+fn lattice(
+    dim: usize,
+    nb: usize,
+    bonds: &[(usize, usize, Cell, f64)],
+    levels: &[(&str, Vec<Vec<(usize, Cell)>>)],
+) -> Lattice {
+    let mut vectors = vec![[0.0; 3]; dim];
+    for (k, v) in vectors.iter_mut().enumerate() {
+        v[k] = 1.0;
+    }
+    Lattice {
+        name: "test".into(),
+        description: None,
+        dimension: dim,
+        vectors,
+        basis: (0..nb)
+            .map(|a| Site {
+                name: format!("s{a}"),
+                position: [0.0; 3],
+            })
+            .collect(),
+        couplings: vec![("J".into(), 1.0)],
+        field: 0.0,
+        bonds: bonds
+            .iter()
+            .map(|&(from, to, cell, j)| Bond {
+                from,
+                to,
+                cell,
+                coupling: "J".into(),
+                j,
+            })
+            .collect(),
+        levels: levels
+            .iter()
+            .map(|(n, s)| LevelSpec {
+                name: n.to_string(),
+                shapes: s.clone(),
+            })
+            .collect(),
+        reference: None,
+    }
+}
+
+fn block(nx: i32, ny: i32) -> Vec<(usize, Cell)> {
+    (0..ny)
+        .flat_map(|y| (0..nx).map(move |x| (0usize, [x, y, 0])))
+        .collect()
+}
+
+fn square(jy: f64) -> Lattice {
+    lattice(
+        2,
+        1,
+        &[(0, 0, [1, 0, 0], 1.0), (0, 0, [0, 1, 0], jy)],
+        &[
+            ("plaquette", vec![block(2, 2)]),
+            ("block3", vec![block(3, 3)]),
+            ("block4", vec![block(4, 4)]),
+        ],
+    )
+}
+
+#[test]
+fn square_lattice_has_the_eight_operations_of_d4() {
+    // The square lattice's point group is D4, order 8 (common practice).
+    assert_eq!(point_group(&square(1.0)).len(), 8);
+    // Jx ≠ Jy leaves the reflections and the 180° rotation: order 4.
+    assert_eq!(point_group(&square(0.5)).len(), 4);
+}
+
+#[test]
+fn simple_cubic_has_48_and_triangular_12() {
+    // Oh has order 48, the triangular lattice's point group C6v order 12 (common practice).
+    let sc = lattice(
+        3,
+        1,
+        &[
+            (0, 0, [1, 0, 0], 1.0),
+            (0, 0, [0, 1, 0], 1.0),
+            (0, 0, [0, 0, 1], 1.0),
+        ],
+        &[],
+    );
+    assert_eq!(point_group(&sc).len(), 48);
+    let tri = lattice(
+        2,
+        1,
+        &[
+            (0, 0, [1, 0, 0], 1.0),
+            (0, 0, [0, 1, 0], 1.0),
+            (0, 0, [-1, 1, 0], 1.0),
+        ],
+        &[],
+    );
+    assert_eq!(point_group(&tri).len(), 12);
+}
+
+#[test]
+fn honeycomb_operations_swap_the_sublattices() {
+    // Honeycomb: C6v about a hexagon centre, order 12, half of the operations exchange
+    // the two sublattices (common practice).
+    let h = lattice(
+        2,
+        2,
+        &[
+            (0, 1, [0, 0, 0], 1.0),
+            (0, 1, [-1, 0, 0], 1.0),
+            (0, 1, [0, -1, 0], 1.0),
+        ],
+        &[],
+    );
+    let ops = point_group(&h);
+    assert_eq!(ops.len(), 12);
+    assert_eq!(ops.iter().filter(|o| o.perm[0] == 1).count(), 6);
+}
+
+#[test]
+fn square_block4_orbits_under_d4() {
+    // 4×4 block: 57,856 translation classes fall into 7,625 orbits under D4, 3,862 even
+    // and 3,763 odd (counted by this enumeration; consistent with the sizes the method
+    // is known for).
+    let l = square(1.0);
+    let lv = Level::build(&l, "block4").unwrap();
+    let ops = level_group(&lv, &point_group(&l));
+    assert_eq!(ops.len(), 8);
+    let orbits = variable_orbits(&lv, &ops);
+    let red = lv.reduced(&orbits);
+    assert_eq!(red.variables.len(), 7_625);
+    let even = red.variables.iter().filter(|c| c.len() % 2 == 0).count();
+    assert_eq!((even, red.variables.len() - even), (3_862, 3_763));
+}
+
+#[test]
+fn plaquette_orbits() {
+    // Plaquette: 10 translation classes (site, 2 bonds, 2 diagonals, 4 triangles,
+    // plaquette) → 5 orbits under D4: the bond orientations, the diagonals and the
+    // triangles each merge (counted by hand).
+    let l = square(1.0);
+    let lv = Level::build(&l, "plaquette").unwrap();
+    let orbits = variable_orbits(&lv, &level_group(&lv, &point_group(&l)));
+    assert_eq!(lv.reduced(&orbits).variables.len(), 5);
+}
