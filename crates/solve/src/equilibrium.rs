@@ -23,7 +23,10 @@ pub struct NewtonOptions {
 
 impl Default for NewtonOptions {
     fn default() -> Self {
-        NewtonOptions { tolerance: 1e-11, max_iterations: 200 }
+        NewtonOptions {
+            tolerance: 1e-11,
+            max_iterations: 200,
+        }
     }
 }
 
@@ -63,13 +66,19 @@ pub fn minimise(
     for it in 0..options.max_iterations {
         let gn = block_norm(&ev.gradient, block);
         if gn <= options.tolerance {
-            return Ok(Solution { x, evaluation: ev, iterations: it });
+            return Ok(Solution {
+                x,
+                evaluation: ev,
+                iterations: it,
+            });
         }
         let g = block.gather(&ev.gradient);
         let Some(hess) = f.hessian_block(&x, &block.vars, &block.pos) else {
             break;
         };
-        let scale = (0..hess.nrows()).map(|i| hess[(i, i)].abs()).fold(1e-300, f64::max);
+        let scale = (0..hess.nrows())
+            .map(|i| hess[(i, i)].abs())
+            .fold(1e-300, f64::max);
         let mut accepted = false;
         for _attempt in 0..40 {
             let mut m = hess.clone();
@@ -84,7 +93,11 @@ pub fn minimise(
             // At the rounding floor of the gradient (big clusters at low T: ln p of tiny
             // probabilities) Newton asks for steps below the resolution of ξ: converged.
             if mu == 0.0 && d.amax() < 1e-13 && gn < ROUNDING_FLOOR {
-                return Ok(Solution { x, evaluation: ev, iterations: it });
+                return Ok(Solution {
+                    x,
+                    evaluation: ev,
+                    iterations: it,
+                });
             }
             let slope = g.dot(&d);
             let mut alpha = 1.0;
@@ -131,7 +144,11 @@ pub fn minimise(
     }
     let gn = block_norm(&ev.gradient, block);
     if gn <= options.tolerance {
-        return Ok(Solution { x, evaluation: ev, iterations: options.max_iterations });
+        return Ok(Solution {
+            x,
+            evaluation: ev,
+            iterations: options.max_iterations,
+        });
     }
     Err(SolveError::NotConverged {
         level,
@@ -146,5 +163,9 @@ pub fn minimise(
 /// The product state with every site magnetisation `m`: `ξ_c = m^{|c|}` (always feasible
 /// for |m| < 1). The paramagnetic start is `m = 0`.
 pub fn product_state(f: &Functional, m: f64) -> Vec<f64> {
-    f.level().variables.iter().map(|c| m.powi(c.len() as i32)).collect()
+    f.level()
+        .variables
+        .iter()
+        .map(|c| m.powi(c.len() as i32))
+        .collect()
 }

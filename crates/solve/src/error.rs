@@ -33,7 +33,9 @@ pub enum SolveError {
         h: f64,
     },
     /// A temperature that is not a positive finite number.
-    #[error("temperature {t} is not a positive finite number; give T > 0 in units of the coupling")]
+    #[error(
+        "temperature {t} is not a positive finite number; give T > 0 in units of the coupling"
+    )]
     BadTemperature {
         /// The value given.
         t: f64,

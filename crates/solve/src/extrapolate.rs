@@ -74,7 +74,11 @@ fn linear_fit(x: &[f64], y: &[f64]) -> (f64, f64, f64, f64, f64) {
     let sxy: f64 = x.iter().zip(y).map(|(a, b)| (a - mx) * (b - my)).sum();
     let b = sxy / sxx;
     let a = my - b * mx;
-    let rss: f64 = x.iter().zip(y).map(|(xi, yi)| (yi - a - b * xi).powi(2)).sum();
+    let rss: f64 = x
+        .iter()
+        .zip(y)
+        .map(|(xi, yi)| (yi - a - b * xi).powi(2))
+        .sum();
     let dof = x.len().saturating_sub(2);
     let (sa, sb) = if dof > 0 {
         let s2 = rss / dof as f64;
@@ -87,7 +91,11 @@ fn linear_fit(x: &[f64], y: &[f64]) -> (f64, f64, f64, f64, f64) {
 
 /// Cluster rungs sorted by size, one per size (the smallest Tc kept).
 fn prepare(rungs: &[Rung]) -> Vec<Rung> {
-    let mut v: Vec<Rung> = rungs.iter().copied().filter(|r| r.sites >= 2 && r.tc.is_finite() && r.tc > 0.0).collect();
+    let mut v: Vec<Rung> = rungs
+        .iter()
+        .copied()
+        .filter(|r| r.sites >= 2 && r.tc.is_finite() && r.tc > 0.0)
+        .collect();
     v.sort_by(|a, b| a.sites.cmp(&b.sites).then(a.tc.total_cmp(&b.tc)));
     v.dedup_by(|b, a| a.sites == b.sites);
     v
@@ -98,7 +106,11 @@ pub fn inverse_size(rungs: &[Rung]) -> Result<Extrapolation, ExtrapolationError>
     let v = prepare(rungs);
     const METHOD: &str = "inverse-size";
     if v.len() < 3 {
-        return Err(ExtrapolationError::TooFewLevels { method: METHOD, needed: 3, got: v.len() });
+        return Err(ExtrapolationError::TooFewLevels {
+            method: METHOD,
+            needed: 3,
+            got: v.len(),
+        });
     }
     let fit = |r: &[Rung]| {
         let x: Vec<f64> = r.iter().map(|r| 1.0 / r.sites as f64).collect();
@@ -107,7 +119,12 @@ pub fn inverse_size(rungs: &[Rung]) -> Result<Extrapolation, ExtrapolationError>
     };
     let (a, _, sa, _, _) = fit(&v);
     let (a_drop, ..) = fit(&v[1..]);
-    Ok(Extrapolation { tc: a, tc_error: (sa * sa + (a - a_drop).powi(2)).sqrt(), gamma: None, gamma_error: None })
+    Ok(Extrapolation {
+        tc: a,
+        tc_error: (sa * sa + (a - a_drop).powi(2)).sqrt(),
+        gamma: None,
+        gamma_error: None,
+    })
 }
 
 /// Profiled residual of the coherent-anomaly model at a trial Tc*.
@@ -152,9 +169,17 @@ fn cam_fit(v: &[Rung]) -> Result<(f64, f64, f64), ExtrapolationError> {
     }
     let step = (hi - lo) / n as f64;
     let (a, b) = ((best_t - step).max(lo), (best_t + step).min(hi));
-    let tc_star = match Executor::new(CamResidual(v), BrentOpt::new(a, b)).configure(|s| s.max_iters(200)).run() {
+    let tc_star = match Executor::new(CamResidual(v), BrentOpt::new(a, b))
+        .configure(|s| s.max_iters(200))
+        .run()
+    {
         Ok(r) => r.state.best_param.unwrap_or(best_t),
-        Err(e) => return Err(ExtrapolationError::BadData { method: METHOD, detail: e.to_string() }),
+        Err(e) => {
+            return Err(ExtrapolationError::BadData {
+                method: METHOD,
+                detail: e.to_string(),
+            })
+        }
     };
     let (_, slope, _, s_slope, _) = problem.fit(tc_star);
     let psi = -slope;
@@ -172,14 +197,24 @@ fn cam_fit(v: &[Rung]) -> Result<(f64, f64, f64), ExtrapolationError> {
 /// is used).
 pub fn coherent_anomaly(rungs: &[Rung]) -> Result<Extrapolation, ExtrapolationError> {
     const METHOD: &str = "coherent-anomaly";
-    let v: Vec<Rung> = prepare(rungs).into_iter().filter(|r| r.amplitude.is_finite() && r.amplitude > 0.0).collect();
+    let v: Vec<Rung> = prepare(rungs)
+        .into_iter()
+        .filter(|r| r.amplitude.is_finite() && r.amplitude > 0.0)
+        .collect();
     if v.len() < 3 {
-        return Err(ExtrapolationError::TooFewLevels { method: METHOD, needed: 3, got: v.len() });
+        return Err(ExtrapolationError::TooFewLevels {
+            method: METHOD,
+            needed: 3,
+            got: v.len(),
+        });
     }
     let (tc, psi, s_psi) = cam_fit(&v)?;
     let (tc_error, gamma_error) = if v.len() >= 4 {
         let (tc_d, psi_d, _) = cam_fit(&v[1..])?;
-        ((tc - tc_d).abs(), (s_psi * s_psi + (psi - psi_d).powi(2)).sqrt())
+        (
+            (tc - tc_d).abs(),
+            (s_psi * s_psi + (psi - psi_d).powi(2)).sqrt(),
+        )
     } else {
         // No degrees of freedom: the honest error is how far the two methods disagree.
         let lin = prepare(&v);
@@ -189,7 +224,12 @@ pub fn coherent_anomaly(rungs: &[Rung]) -> Result<Extrapolation, ExtrapolationEr
         let e = (tc - a).abs();
         (e, psi * e / (v[0].tc - tc).max(1e-12))
     };
-    Ok(Extrapolation { tc, tc_error, gamma: Some(1.0 + psi), gamma_error: Some(gamma_error) })
+    Ok(Extrapolation {
+        tc,
+        tc_error,
+        gamma: Some(1.0 + psi),
+        gamma_error: Some(gamma_error),
+    })
 }
 
 #[cfg(test)]
@@ -201,7 +241,11 @@ mod tests {
         // Synthetic data obeying the model exactly: Tc* = 2, ψ = 0.75, A = 1.3.
         let rungs: Vec<Rung> = [(2, 2.9), (4, 2.45), (9, 2.3), (16, 2.2)]
             .iter()
-            .map(|&(sites, tc)| Rung { sites, tc, amplitude: 1.3 * (tc - 2.0f64).powf(-0.75) })
+            .map(|&(sites, tc)| Rung {
+                sites,
+                tc,
+                amplitude: 1.3 * (tc - 2.0f64).powf(-0.75),
+            })
             .collect();
         let e = coherent_anomaly(&rungs).unwrap();
         // A residual minimum is flat to second order: Tc* to ~√ε-level accuracy.
@@ -212,16 +256,43 @@ mod tests {
 
     #[test]
     fn inverse_size_recovers_a_line() {
-        let rungs: Vec<Rung> =
-            [2usize, 4, 9, 16].iter().map(|&n| Rung { sites: n, tc: 2.0 + 1.5 / n as f64, amplitude: 1.0 }).collect();
+        let rungs: Vec<Rung> = [2usize, 4, 9, 16]
+            .iter()
+            .map(|&n| Rung {
+                sites: n,
+                tc: 2.0 + 1.5 / n as f64,
+                amplitude: 1.0,
+            })
+            .collect();
         let e = inverse_size(&rungs).unwrap();
         assert!((e.tc - 2.0).abs() < 1e-12 && e.tc_error < 1e-10);
     }
 
     #[test]
     fn too_few_levels_is_a_clear_error() {
-        let rungs = [Rung { sites: 2, tc: 2.9, amplitude: 1.4 }, Rung { sites: 4, tc: 2.4, amplitude: 2.0 }];
-        assert!(matches!(coherent_anomaly(&rungs), Err(ExtrapolationError::TooFewLevels { needed: 3, got: 2, .. })));
-        assert!(matches!(inverse_size(&rungs), Err(ExtrapolationError::TooFewLevels { .. })));
+        let rungs = [
+            Rung {
+                sites: 2,
+                tc: 2.9,
+                amplitude: 1.4,
+            },
+            Rung {
+                sites: 4,
+                tc: 2.4,
+                amplitude: 2.0,
+            },
+        ];
+        assert!(matches!(
+            coherent_anomaly(&rungs),
+            Err(ExtrapolationError::TooFewLevels {
+                needed: 3,
+                got: 2,
+                ..
+            })
+        ));
+        assert!(matches!(
+            inverse_size(&rungs),
+            Err(ExtrapolationError::TooFewLevels { .. })
+        ));
     }
 }

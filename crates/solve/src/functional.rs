@@ -69,9 +69,18 @@ impl<'a> Functional<'a> {
     pub fn new(level: &'a Level, t: f64, h: f64) -> Functional<'a> {
         let regions = level
             .active_regions()
-            .map(|r| RegionTerm { n: r.cluster.len(), coefficient: r.coefficient as f64, vars: r.subset_vars.clone() })
+            .map(|r| RegionTerm {
+                n: r.cluster.len(),
+                coefficient: r.coefficient as f64,
+                vars: r.subset_vars.clone(),
+            })
             .collect();
-        Functional { level, t, h, regions }
+        Functional {
+            level,
+            t,
+            h,
+            regions,
+        }
     }
 
     /// The level.
@@ -88,7 +97,12 @@ impl<'a> Functional<'a> {
     }
     /// The same functional at another temperature and field.
     pub fn at(&self, t: f64, h: f64) -> Functional<'a> {
-        Functional { level: self.level, t, h, regions: self.regions.clone() }
+        Functional {
+            level: self.level,
+            t,
+            h,
+            regions: self.regions.clone(),
+        }
     }
 
     /// Number of variables.
@@ -159,7 +173,12 @@ impl<'a> Functional<'a> {
         let entropy = self.entropy_and_gradient(x, &mut gradient, -self.t)?;
         let energy = self.energy(x);
         self.add_energy_gradient(x, &mut gradient);
-        Some(Evaluation { free_energy: energy - self.t * entropy, energy, entropy, gradient })
+        Some(Evaluation {
+            free_energy: energy - self.t * entropy,
+            energy,
+            entropy,
+            gradient,
+        })
     }
 
     /// Entropy per cell; adds `scale · ∂S/∂ξ` into `g`. `None` if infeasible.

@@ -21,6 +21,6 @@ pub mod wht;
 
 pub use error::SolveError;
 pub use state::{equilibrium as solve_equilibrium, Branch, State};
-pub use tc::{critical_temperature, CriticalPoint, ModeKind, TcOptions};
 pub use sweep::sweep;
+pub use tc::{critical_temperature, CriticalPoint, ModeKind, TcOptions};
 pub use thermo::{observables, Observables};

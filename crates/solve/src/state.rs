@@ -53,7 +53,12 @@ pub fn magnetization(level: &Level, x: &[f64]) -> f64 {
 /// against order (odd-sector Hessian not positive definite) the ordered solution with
 /// m > 0 is found too and the one with the lower F returned. In a field all variables
 /// are free.
-pub fn equilibrium(level: &Level, t: f64, h: f64, warm: Option<&[f64]>) -> Result<State, SolveError> {
+pub fn equilibrium(
+    level: &Level,
+    t: f64,
+    h: f64,
+    warm: Option<&[f64]>,
+) -> Result<State, SolveError> {
     if !(t.is_finite() && t > 0.0) {
         return Err(SolveError::BadTemperature { t });
     }
@@ -61,15 +66,24 @@ pub fn equilibrium(level: &Level, t: f64, h: f64, warm: Option<&[f64]>) -> Resul
     let f = Functional::new(level, t, h);
     let opts = NewtonOptions::default();
     let all = Block::all(level);
-    let feasible_warm = warm.filter(|w| w.len() == f.len() && f.feasible(w)).map(|w| w.to_vec());
+    let feasible_warm = warm
+        .filter(|w| w.len() == f.len() && f.feasible(w))
+        .map(|w| w.to_vec());
     if h != 0.0 {
         let start = feasible_warm.unwrap_or_else(|| product_state(&f, (h / t).tanh() * 0.5));
         let solution = solve_with_restarts(&f, start, &all, opts, h.signum() * 0.5)?;
-        return Ok(State { t, h, solution, branch: Branch::Field });
+        return Ok(State {
+            t,
+            h,
+            solution,
+            branch: Branch::Field,
+        });
     }
     let even = Block::even(level);
     let para_start = {
-        let mut x = feasible_warm.clone().unwrap_or_else(|| product_state(&f, 0.0));
+        let mut x = feasible_warm
+            .clone()
+            .unwrap_or_else(|| product_state(&f, 0.0));
         for &v in &Block::odd(level).vars {
             x[v] = 0.0;
         }
@@ -81,7 +95,12 @@ pub fn equilibrium(level: &Level, t: f64, h: f64, warm: Option<&[f64]>) -> Resul
     };
     let para = minimise(&f, para_start, &even, opts)?;
     if odd_sector_stable(&f, &para.x) {
-        return Ok(State { t, h, solution: para, branch: Branch::Paramagnetic });
+        return Ok(State {
+            t,
+            h,
+            solution: para,
+            branch: Branch::Paramagnetic,
+        });
     }
     // Ordered branch: start from the warm point if it is ordered, else a product state.
     let mut start = feasible_warm
@@ -96,9 +115,19 @@ pub fn equilibrium(level: &Level, t: f64, h: f64, warm: Option<&[f64]>) -> Resul
                 flip(level, &mut ord.x);
                 ord = minimise(&f, ord.x, &all, opts)?;
             }
-            Ok(State { t, h, solution: ord, branch: Branch::Ordered })
+            Ok(State {
+                t,
+                h,
+                solution: ord,
+                branch: Branch::Ordered,
+            })
         }
-        _ => Ok(State { t, h, solution: para, branch: Branch::Paramagnetic }),
+        _ => Ok(State {
+            t,
+            h,
+            solution: para,
+            branch: Branch::Paramagnetic,
+        }),
     }
 }
 
@@ -121,7 +150,12 @@ fn solve_with_restarts(
     match minimise(f, start, block, opts) {
         Ok(s) => Ok(s),
         Err(first) => {
-            for m in [m_fallback, 0.99 * m_fallback.signum(), 0.5 * m_fallback, 0.0] {
+            for m in [
+                m_fallback,
+                0.99 * m_fallback.signum(),
+                0.5 * m_fallback,
+                0.0,
+            ] {
                 if let Ok(s) = minimise(f, product_state(f, m), block, opts) {
                     return Ok(s);
                 }

@@ -10,7 +10,12 @@ use crate::thermo::{observables, Observables};
 
 /// Observables of `level` at every (field, temperature), fields outermost. `tick` is
 /// called once per finished point (for progress reporting; the engine never prints).
-pub fn sweep(level: &Level, temps: &[f64], fields: &[f64], tick: &(dyn Fn() + Sync)) -> Result<Vec<Observables>, SolveError> {
+pub fn sweep(
+    level: &Level,
+    temps: &[f64],
+    fields: &[f64],
+    tick: &(dyn Fn() + Sync),
+) -> Result<Vec<Observables>, SolveError> {
     let mut out = Vec::with_capacity(temps.len() * fields.len());
     for &h in fields {
         let mut warm: Option<Vec<f64>> = None;

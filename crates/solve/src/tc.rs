@@ -15,7 +15,7 @@ use std::time::Instant;
 use argmin::core::{CostFunction, Executor};
 use argmin::solver::brent::BrentRoot;
 use nalgebra::{DMatrix, DVector};
-use rungs_lattice::{Lattice, Level};
+use rungs_lattice::{symmetry, Lattice, Level};
 
 use crate::equilibrium::{minimise, product_state, NewtonOptions};
 use crate::error::SolveError;
@@ -99,17 +99,22 @@ struct Probe<'a> {
     f: Functional<'a>,
     even: Block,
     odd: Block,
+    /// `D^{-1/2}` per variable on an orbit-reduced level (D = orbit sizes), so that the
+    /// odd Hessian `D^{-1/2} PᵀHP D^{-1/2}` has the eigenvalues of H on the symmetric
+    /// subspace; all ones on a plain level.
+    norm: Vec<f64>,
     warm: RefCell<Vec<f64>>,
     error: RefCell<Option<SolveError>>,
 }
 
 impl<'a> Probe<'a> {
-    fn new(level: &'a Level) -> Probe<'a> {
+    fn new(level: &'a Level, norm: Vec<f64>) -> Probe<'a> {
         let f = Functional::new(level, 1.0, 0.0);
         let warm = product_state(&f, 0.0);
         Probe {
             even: Block::even(level),
             odd: Block::odd(level),
+            norm,
             warm: RefCell::new(warm),
             f,
             error: RefCell::new(None),
@@ -126,12 +131,17 @@ impl<'a> Probe<'a> {
             product_state(&f, 0.0)
         };
         let sol = minimise(&f, start, &self.even, NewtonOptions::default())?;
-        let h = f
+        let mut h = f
             .hessian_block(&sol.x, &self.odd.vars, &self.odd.pos)
             .ok_or_else(|| SolveError::TcSearch {
                 level: self.f.level().name.clone(),
                 detail: format!("paramagnetic solution at T = {t} left the feasible region"),
             })?;
+        for (j, &vj) in self.odd.vars.iter().enumerate() {
+            for (i, &vi) in self.odd.vars.iter().enumerate() {
+                h[(i, j)] *= self.norm[vi] * self.norm[vj];
+            }
+        }
         *self.warm.borrow_mut() = sol.x;
         Ok(h)
     }
@@ -172,6 +182,12 @@ impl CostFunction for Lowest<'_, '_> {
 }
 
 /// Find the critical temperature of `level` (built from `lattice`) at h = 0.
+///
+/// The search first runs on the orbit-reduced level (point-group symmetric states and
+/// modes only: small and fast), then checks with one Cholesky factorisation that the
+/// full odd sector is still positive definite just above the Tc found, i.e. that no
+/// less symmetric mode went critical first. If one did, or the symmetric sector never
+/// orders, the search is repeated on the unreduced variables.
 pub fn critical_temperature(
     lattice: &Lattice,
     level: &Level,
@@ -179,9 +195,49 @@ pub fn critical_temperature(
 ) -> Result<CriticalPoint, SolveError> {
     crate::functional::check_size(level)?;
     let start = Instant::now();
-    let probe = Probe::new(level);
-    let name = level.name.clone();
     let scale = mean_field_scale(lattice).max(1e-12);
+    let ops = symmetry::level_group(level, &symmetry::point_group(lattice));
+    if ops.len() > 1 {
+        let orbit_of = symmetry::variable_orbits(level, &ops);
+        let reduced = level.reduced(&orbit_of);
+        let mut size = vec![0usize; reduced.variables.len()];
+        for &o in &orbit_of {
+            size[o] += 1;
+        }
+        let norm: Vec<f64> = size.iter().map(|&d| 1.0 / (d as f64).sqrt()).collect();
+        let (sym, y) = search(scale, &reduced, norm, options)?;
+        if let Some(tc) = sym.tc {
+            let t_check = tc * (1.0 + 1e-6);
+            let x: Vec<f64> = orbit_of.iter().map(|&o| y[o]).collect();
+            let f = Functional::new(level, t_check, 0.0);
+            // Re-solve the paramagnet at t_check so that the check is exact there.
+            let para = minimise(&f, x, &Block::even(level), NewtonOptions::default())?;
+            if crate::state::odd_sector_stable(&f, &para.x) {
+                return Ok(CriticalPoint {
+                    seconds: start.elapsed().as_secs_f64(),
+                    ..sym
+                });
+            }
+        }
+    }
+    let (cp, _) = search(scale, level, vec![1.0; level.variables.len()], options)?;
+    Ok(CriticalPoint {
+        seconds: start.elapsed().as_secs_f64(),
+        ..cp
+    })
+}
+
+/// The search proper on one (plain or orbit-reduced) level; also returns the
+/// paramagnetic solution at the last temperature probed (at Tc when one was found).
+fn search(
+    scale: f64,
+    level: &Level,
+    norm: Vec<f64>,
+    options: TcOptions,
+) -> Result<(CriticalPoint, Vec<f64>), SolveError> {
+    let start = Instant::now();
+    let probe = Probe::new(level, norm);
+    let name = level.name.clone();
     let mut t_hi = scale * 1.02;
     let (mut lam_hi, _) = probe.lowest(t_hi)?;
     let mut grow = 0;
@@ -247,16 +303,19 @@ pub fn critical_temperature(
     }
     let nb = level.sites_per_cell;
     if !found {
-        return Ok(CriticalPoint {
-            level: name,
-            max_cluster_sites: level.max_cluster_sites(),
-            tc: None,
-            searched_down_to: t_lo,
-            mode: vec![0.0; nb],
-            kind: ModeKind::Hidden,
-            amplitude: None,
-            seconds: start.elapsed().as_secs_f64(),
-        });
+        return Ok((
+            CriticalPoint {
+                level: name,
+                max_cluster_sites: level.max_cluster_sites(),
+                tc: None,
+                searched_down_to: t_lo,
+                mode: vec![0.0; nb],
+                kind: ModeKind::Hidden,
+                amplitude: None,
+                seconds: start.elapsed().as_secs_f64(),
+            },
+            probe.warm.borrow().clone(),
+        ));
     }
     // Warm start from the upper end for the root finder.
     probe.odd_hessian(t_hi)?;
@@ -285,24 +344,32 @@ pub fn critical_temperature(
         Ok(u.dot(&(&h * &u)))
     };
     let slope = (rayleigh(tc + delta)? - rayleigh(tc - delta)?) / (2.0 * delta);
+    // Back at Tc (the paramagnet returned is the one there). Site components of the
+    // mode in the full variables: u_k D_k^{-1/2} for the orbit k of each site's
+    // variable (plain level: D = 1).
+    probe.odd_hessian(tc)?;
     let site_components: Vec<f64> = level
         .site_vars
         .iter()
-        .map(|&v| u[probe.odd.pos[v]])
+        .map(|&v| u[probe.odd.pos[v]] * probe.norm[v])
         .collect();
     let e_dot_u: f64 = site_components.iter().sum();
     let amplitude = (slope > 0.0).then(|| e_dot_u * e_dot_u / (nb as f64 * slope));
     let (mode, kind) = classify(&site_components);
-    Ok(CriticalPoint {
-        level: name,
-        max_cluster_sites: level.max_cluster_sites(),
-        tc: Some(tc),
-        searched_down_to: t_lo,
-        mode,
-        kind,
-        amplitude,
-        seconds: start.elapsed().as_secs_f64(),
-    })
+    let warm = probe.warm.borrow().clone();
+    Ok((
+        CriticalPoint {
+            level: name,
+            max_cluster_sites: level.max_cluster_sites(),
+            tc: Some(tc),
+            searched_down_to: t_lo,
+            mode,
+            kind,
+            amplitude,
+            seconds: start.elapsed().as_secs_f64(),
+        },
+        warm,
+    ))
 }
 
 /// Normalise site components (largest |·| = 1, first non-zero positive) and classify.

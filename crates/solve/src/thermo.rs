@@ -57,7 +57,10 @@ pub fn observables(level: &Level, state: &State) -> Result<Observables, SolveErr
     let nb = level.sites_per_cell as f64;
     let singular = || SolveError::TcSearch {
         level: level.name.clone(),
-        detail: format!("the Hessian is singular at T = {}, h = {} (a critical point): C and χ diverge there", state.t, state.h),
+        detail: format!(
+            "the Hessian is singular at T = {}, h = {} (a critical point): C and χ diverge there",
+            state.t, state.h
+        ),
     };
     let hess = full_hessian(&f, x).ok_or_else(singular)?;
     let mut e = DVector::zeros(f.len());

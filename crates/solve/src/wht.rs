@@ -32,8 +32,15 @@ mod tests {
         let mut g = f.clone();
         wht(&mut g);
         for s in 0..16usize {
-            let direct: f64 =
-                (0..16usize).map(|c| f[c] * if (c & s).count_ones() % 2 == 0 { 1.0 } else { -1.0 }).sum();
+            let direct: f64 = (0..16usize)
+                .map(|c| {
+                    f[c] * if (c & s).count_ones() % 2 == 0 {
+                        1.0
+                    } else {
+                        -1.0
+                    }
+                })
+                .sum();
             assert!((g[s] - direct).abs() < 1e-12);
         }
         wht(&mut g);

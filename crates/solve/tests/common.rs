@@ -7,7 +7,9 @@ use rungs_lattice::{Lattice, Level};
 
 /// A shipped lattice file by stem, e.g. `square`.
 pub fn shipped(stem: &str) -> Lattice {
-    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../../lattices").join(format!("{stem}.yaml"));
+    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("../../lattices")
+        .join(format!("{stem}.yaml"));
     Lattice::from_file(&path).unwrap()
 }
 

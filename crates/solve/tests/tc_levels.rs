@@ -9,13 +9,22 @@ use rungs_solve::{critical_temperature, ModeKind, TcOptions};
 fn tc(stem: &str, level_name: &str) -> f64 {
     let l = shipped(stem);
     let lv = level(&l, level_name);
-    critical_temperature(&l, &lv, TcOptions::default()).unwrap().tc.unwrap()
+    critical_temperature(&l, &lv, TcOptions::default())
+        .unwrap()
+        .tc
+        .unwrap()
 }
 
 #[test]
 fn site_level_is_z_j_on_one_site_ferromagnets() {
     // Mean-field theory: Tc = z J (common practice).
-    for (stem, z) in [("square", 4.0), ("triangular", 6.0), ("simple_cubic", 6.0), ("bcc", 8.0), ("fcc", 12.0)] {
+    for (stem, z) in [
+        ("square", 4.0),
+        ("triangular", 6.0),
+        ("simple_cubic", 6.0),
+        ("bcc", 8.0),
+        ("fcc", 12.0),
+    ] {
         let t = tc(stem, "site");
         assert!((t / z - 1.0).abs() < 1e-9, "{stem}: site Tc {t} vs z = {z}");
     }
@@ -46,7 +55,10 @@ fn pair_level_is_bethe() {
     ] {
         let t: f64 = tc(stem, "pair");
         let bethe = 2.0 / (z / (z - 2.0f64)).ln();
-        assert!((t / bethe - 1.0).abs() < 1e-8, "{stem}: pair Tc {t} vs Bethe {bethe}");
+        assert!(
+            (t / bethe - 1.0).abs() < 1e-8,
+            "{stem}: pair Tc {t} vs Bethe {bethe}"
+        );
     }
 }
 
@@ -74,7 +86,10 @@ fn square_ladder_lies_between_exact_and_bethe_and_falls() {
     let exact = onsager_tc();
     let plaq = tc("square", "plaquette");
     let b3 = tc("square", "block3");
-    assert!(exact < b3 && b3 < plaq && plaq < bethe, "{exact} < {b3} < {plaq} < {bethe}");
+    assert!(
+        exact < b3 && b3 < plaq && plaq < bethe,
+        "{exact} < {b3} < {plaq} < {bethe}"
+    );
 }
 
 #[test]
@@ -85,12 +100,20 @@ fn cluster_levels_between_exact_and_bethe_on_2d_lattices() {
     let cases = [
         ("triangular", "triangles", 4.0 / 3f64.ln(), 6.0),
         ("honeycomb", "hexagon", 2.0 / (2.0 + 3f64.sqrt()).ln(), 3.0),
-        ("kagome", "triangles", 4.0 / (3.0 + 2.0 * 3f64.sqrt()).ln(), 4.0),
+        (
+            "kagome",
+            "triangles",
+            4.0 / (3.0 + 2.0 * 3f64.sqrt()).ln(),
+            4.0,
+        ),
     ];
     for (stem, lv, exact, z) in cases {
         let t = tc(stem, lv);
         let bethe = 2.0 / (z / (z - 2.0f64)).ln();
-        assert!(exact < t && t < bethe, "{stem}/{lv}: {exact} < {t} < {bethe}");
+        assert!(
+            exact < t && t < bethe,
+            "{stem}/{lv}: {exact} < {t} < {bethe}"
+        );
     }
 }
 
@@ -112,12 +135,18 @@ fn neel_order_on_a_supercell_matches_the_ferromagnet() {
         let f = critical_temperature(&ferro, &level(&ferro, lv), TcOptions::default()).unwrap();
         let a = critical_temperature(&anti, &level(&anti, lv), TcOptions::default()).unwrap();
         let (tf, ta) = (f.tc.unwrap(), a.tc.unwrap());
-        assert!((tf / ta - 1.0).abs() < 1e-7, "{lv}: ferro {tf} vs Néel {ta}");
+        assert!(
+            (tf / ta - 1.0).abs() < 1e-7,
+            "{lv}: ferro {tf} vs Néel {ta}"
+        );
         assert_eq!(f.kind, ModeKind::Uniform);
         assert_eq!(a.kind, ModeKind::Staggered);
         // Néel pattern on the 2×2 cell: sites (0,0),(1,1) against (1,0),(0,1).
         let m = &a.mode;
-        assert!((m[0] - m[3]).abs() < 1e-6 && (m[1] - m[2]).abs() < 1e-6 && (m[0] + m[1]).abs() < 1e-6, "{m:?}");
+        assert!(
+            (m[0] - m[3]).abs() < 1e-6 && (m[1] - m[2]).abs() < 1e-6 && (m[0] + m[1]).abs() < 1e-6,
+            "{m:?}"
+        );
     }
 }
 
@@ -141,14 +170,26 @@ fn pair_level_amplitude_is_half_tc_on_the_square_lattice() {
     let cp = critical_temperature(&l, &level(&l, "pair"), TcOptions::default()).unwrap();
     let tc = cp.tc.unwrap();
     let amp = cp.amplitude.unwrap();
-    assert!((amp / (tc / 2.0) - 1.0).abs() < 1e-5, "amplitude {amp} vs Tc/2 = {}", tc / 2.0);
+    assert!(
+        (amp / (tc / 2.0) - 1.0).abs() < 1e-5,
+        "amplitude {amp} vs Tc/2 = {}",
+        tc / 2.0
+    );
 }
-
 
 #[test]
 fn a_level_too_large_for_the_dense_engine_is_refused_up_front() {
     let l = shipped("square");
     let lv = level(&l, "block4");
     let e = critical_temperature(&l, &lv, TcOptions::default()).unwrap_err();
-    assert!(matches!(e, rungs_solve::SolveError::TooLarge { variables: 57_856, .. }), "{e}");
+    assert!(
+        matches!(
+            e,
+            rungs_solve::SolveError::TooLarge {
+                variables: 57_856,
+                ..
+            }
+        ),
+        "{e}"
+    );
 }

@@ -28,12 +28,24 @@ fn chain_pair_level_is_exact() {
     for (t, h) in [(0.5, 0.1), (1.0, 0.0), (1.0, 0.3), (2.5, -0.7), (4.0, 1.5)] {
         let o = obs(&l, "pair", t, h);
         let (f, m) = chain_exact(1.0, t, h);
-        assert!((o.free_energy - f).abs() < 1e-10, "F at T={t}, h={h}: {} vs {f}", o.free_energy);
-        assert!((o.magnetization - m).abs() < 1e-10, "m at T={t}, h={h}: {} vs {m}", o.magnetization);
+        assert!(
+            (o.free_energy - f).abs() < 1e-10,
+            "F at T={t}, h={h}: {} vs {f}",
+            o.free_energy
+        );
+        assert!(
+            (o.magnetization - m).abs() < 1e-10,
+            "m at T={t}, h={h}: {} vs {m}",
+            o.magnetization
+        );
         // χ = ∂m/∂h of the exact form, by central differences.
         let d = 1e-5;
         let chi = (chain_exact(1.0, t, h + d).1 - chain_exact(1.0, t, h - d).1) / (2.0 * d);
-        assert!((o.susceptibility / chi - 1.0).abs() < 1e-6, "χ at T={t}, h={h}: {} vs {chi}", o.susceptibility);
+        assert!(
+            (o.susceptibility / chi - 1.0).abs() < 1e-6,
+            "χ at T={t}, h={h}: {} vs {chi}",
+            o.susceptibility
+        );
     }
 }
 
@@ -43,7 +55,10 @@ fn site_level_solves_the_mean_field_equation() {
     let l = shipped("square");
     for (t, h) in [(2.0, 0.0), (3.0, 0.0), (3.9, 0.0), (5.0, 0.5), (2.5, -0.2)] {
         let m = obs(&l, "site", t, h).magnetization;
-        assert!((m - ((4.0 * m + h) / t).tanh()).abs() < 1e-10, "T={t} h={h} m={m}");
+        assert!(
+            (m - ((4.0 * m + h) / t).tanh()).abs() < 1e-10,
+            "T={t} h={h} m={m}"
+        );
         if h == 0.0 && t < 4.0 {
             assert!(m > 0.1, "ordered branch expected below Tc, got m={m}");
         }
@@ -58,7 +73,12 @@ fn site_level_specific_heat_jump_and_order_parameter() {
     let tc = 4.0;
     let below = obs(&l, "site", tc * (1.0 - 1e-4), 0.0);
     let above = obs(&l, "site", tc * (1.0 + 1e-4), 0.0);
-    assert!((below.specific_heat - above.specific_heat - 1.5).abs() < 2e-3, "{} {}", below.specific_heat, above.specific_heat);
+    assert!(
+        (below.specific_heat - above.specific_heat - 1.5).abs() < 2e-3,
+        "{} {}",
+        below.specific_heat,
+        above.specific_heat
+    );
     let m2 = below.magnetization.powi(2);
     assert!((m2 / (3.0 * 1e-4) - 1.0).abs() < 1e-3, "m² = {m2}");
 }
@@ -98,9 +118,21 @@ fn check_identities(l: &Lattice, lv: &str, t: f64, h: f64) {
     let dh = 1e-4;
     let chi_fd = (near(t, h + dh).magnetization - near(t, h - dh).magnetization) / (2.0 * dh);
     let rel = |a: f64, b: f64| (a - b).abs() / b.abs().max(1e-3);
-    assert!(rel(o.entropy, s_fd) < 1e-5, "{lv} T={t} h={h}: S {} vs {s_fd}", o.entropy);
-    assert!(rel(o.specific_heat, c_fd) < 1e-5, "{lv} T={t} h={h}: C {} vs {c_fd}", o.specific_heat);
-    assert!(rel(o.susceptibility, chi_fd) < 1e-5, "{lv} T={t} h={h}: χ {} vs {chi_fd}", o.susceptibility);
+    assert!(
+        rel(o.entropy, s_fd) < 1e-5,
+        "{lv} T={t} h={h}: S {} vs {s_fd}",
+        o.entropy
+    );
+    assert!(
+        rel(o.specific_heat, c_fd) < 1e-5,
+        "{lv} T={t} h={h}: C {} vs {c_fd}",
+        o.specific_heat
+    );
+    assert!(
+        rel(o.susceptibility, chi_fd) < 1e-5,
+        "{lv} T={t} h={h}: χ {} vs {chi_fd}",
+        o.susceptibility
+    );
     assert!((o.energy - (o.free_energy + t * o.entropy)).abs() < 1e-12);
 }
 
