@@ -49,11 +49,19 @@ impl Cluster {
     }
     /// This cluster translated by `t` (not canonical unless `t` is zero).
     pub fn translated(&self, t: Cell) -> Cluster {
-        Cluster { sites: self.sites.iter().map(|&(c, a)| (cell_add(c, t), a)).collect() }
+        Cluster {
+            sites: self
+                .sites
+                .iter()
+                .map(|&(c, a)| (cell_add(c, t), a))
+                .collect(),
+        }
     }
     /// Whether every site of `self` lies in `other`.
     pub fn is_subset_of(&self, other: &Cluster) -> bool {
-        self.sites.iter().all(|s| other.sites.binary_search(s).is_ok())
+        self.sites
+            .iter()
+            .all(|s| other.sites.binary_search(s).is_ok())
     }
     /// The sites common to both (as given, not canonicalised).
     pub fn intersection(&self, other: &Cluster) -> Vec<(usize, Cell)> {
@@ -82,7 +90,11 @@ impl Cluster {
     /// The subset selected by the bits of `mask` (bit k ↔ k-th site), canonicalised.
     pub fn subset(&self, mask: u64) -> Cluster {
         Cluster::canonical(
-            self.sites.iter().enumerate().filter(|(k, _)| mask >> k & 1 == 1).map(|(_, &(c, a))| (a, c)),
+            self.sites
+                .iter()
+                .enumerate()
+                .filter(|(k, _)| mask >> k & 1 == 1)
+                .map(|(_, &(c, a))| (a, c)),
         )
     }
 }

@@ -94,7 +94,7 @@ pub enum LatticeError {
     #[error("{at}: not valid YAML: {message}")]
     Syntax {
         /// Where the parser stopped.
-        at: Place,
+        at: Box<Place>,
         /// The parser's own description followed by what to fix.
         message: String,
     },
@@ -102,7 +102,7 @@ pub enum LatticeError {
     #[error("{at}: expected {expected}, found {found}")]
     WrongType {
         /// Where the value is.
-        at: Place,
+        at: Box<Place>,
         /// What belongs here, with an example.
         expected: String,
         /// What the file has, e.g. "text `two`".
@@ -112,7 +112,7 @@ pub enum LatticeError {
     #[error("{at}: missing required key `{key}`; add it, e.g. `{example}`")]
     MissingKey {
         /// The mapping that lacks the key (its path; empty for the top level).
-        at: Place,
+        at: Box<Place>,
         /// The missing key.
         key: String,
         /// A line to copy, e.g. `dimension: 2`.
@@ -122,7 +122,7 @@ pub enum LatticeError {
     #[error("{at}: unknown key `{key}`{suggestion}; the keys allowed here are: {allowed}")]
     UnknownKey {
         /// Where the key is, with the path of its mapping.
-        at: Place,
+        at: Box<Place>,
         /// The key as written.
         key: String,
         /// `" (did you mean `x`?)"` or empty.
@@ -134,7 +134,7 @@ pub enum LatticeError {
     #[error("{at}: key `{key}` appears twice in this mapping (first on line {first_line}); keep only one")]
     DuplicateKey {
         /// Where the second occurrence is.
-        at: Place,
+        at: Box<Place>,
         /// The key.
         key: String,
         /// Line of the first occurrence.
@@ -146,7 +146,7 @@ pub enum LatticeError {
     #[error("{at}: dimension {value} is not supported; give 1, 2 or 3")]
     BadDimension {
         /// Where `dimension` is.
-        at: Place,
+        at: Box<Place>,
         /// The value as written.
         value: String,
     },
@@ -154,7 +154,7 @@ pub enum LatticeError {
     #[error("{at}: {count} vector(s) given but dimension is {dimension}; give exactly {dimension} primitive vector(s), one per dimension")]
     WrongVectorCount {
         /// Where `vectors` is.
-        at: Place,
+        at: Box<Place>,
         /// Vectors given.
         count: usize,
         /// The file's dimension.
@@ -164,7 +164,7 @@ pub enum LatticeError {
     #[error("{at}: this {what} has {len} component(s) but dimension is {dimension}; give exactly {dimension}, e.g. {example}")]
     WrongLength {
         /// Where the list is.
-        at: Place,
+        at: Box<Place>,
         /// "vector", "position", "cell offset" or "block".
         what: String,
         /// Components given.
@@ -175,10 +175,10 @@ pub enum LatticeError {
         example: String,
     },
     /// Primitive vectors that do not span the space.
-    #[error("{at}: the primitive vectors are linearly dependent (|det| = {det:.3e} of the product of their lengths, tolerance {tolerance:.0e}); give {dimension} independent vectors, e.g. [1, 0] and [0, 1] in 2D")]
+    #[error("{at}: the primitive vectors are linearly dependent (|det| = {det:.3e} of the product of their lengths, tolerance {tolerance:.0e}); give {dimension} independent vectors, none a combination of the others")]
     DependentVectors {
         /// Where `vectors` is.
-        at: Place,
+        at: Box<Place>,
         /// |det| divided by the product of the vector lengths (0 for a zero vector).
         det: f64,
         /// The tolerance the test used.
@@ -190,7 +190,7 @@ pub enum LatticeError {
     #[error("{at}: cell offset {value} is out of range; each entry must lie in -{limit}..={limit} (a bond or cluster reaching that far is almost surely a typo)")]
     CellOutOfRange {
         /// Where the entry is.
-        at: Place,
+        at: Box<Place>,
         /// The entry as written.
         value: String,
         /// The largest accepted magnitude.
@@ -202,13 +202,13 @@ pub enum LatticeError {
     #[error("{at}: the basis has no site; list at least one, e.g. `basis: [{{name: a}}]`")]
     EmptyBasis {
         /// Where `basis` is.
-        at: Place,
+        at: Box<Place>,
     },
     /// Two basis sites with one name.
     #[error("{at}: basis site name `{name}` is used twice (first on line {first_line}); give each site its own name")]
     DuplicateSite {
         /// Where the second name is.
-        at: Place,
+        at: Box<Place>,
         /// The name.
         name: String,
         /// Line of the first use.
@@ -218,7 +218,7 @@ pub enum LatticeError {
     #[error("{at}: no basis site named `{name}` (known: {known})")]
     UnknownSite {
         /// Where the name is.
-        at: Place,
+        at: Box<Place>,
         /// The name as written.
         name: String,
         /// Comma-separated basis names.
@@ -228,7 +228,7 @@ pub enum LatticeError {
     #[error("{at}: no coupling named `{name}` (known: {known}); use a key of `couplings` or write the value as a bare number, e.g. `coupling: 1.0`")]
     UnknownCoupling {
         /// Where the name is.
-        at: Place,
+        at: Box<Place>,
         /// The name as written.
         name: String,
         /// Comma-separated coupling names, or "none: `couplings` is empty".
@@ -238,7 +238,7 @@ pub enum LatticeError {
     #[error("{at}: {value} is not a finite number; give a finite value, e.g. 1.0")]
     NonFinite {
         /// Where the number is.
-        at: Place,
+        at: Box<Place>,
         /// The value as written, e.g. `.nan`.
         value: String,
     },
@@ -248,7 +248,7 @@ pub enum LatticeError {
     #[error("{at}: this bond joins site `{site}` to itself in the same cell; give a non-zero `cell` offset or another `to` site")]
     SelfBond {
         /// Where the bond is.
-        at: Place,
+        at: Box<Place>,
         /// The site's name.
         site: String,
     },
@@ -258,7 +258,7 @@ pub enum LatticeError {
     )]
     DuplicateBond {
         /// Where the repeat is.
-        at: Place,
+        at: Box<Place>,
         /// Index of the first listing.
         first: usize,
         /// Line of the first listing.
@@ -272,7 +272,7 @@ pub enum LatticeError {
     #[error("{at}: level name `{name}` is reserved (the levels `site` and `pair` exist on every lattice); choose another name")]
     ReservedLevel {
         /// Where the name is.
-        at: Place,
+        at: Box<Place>,
         /// The name.
         name: String,
     },
@@ -280,7 +280,7 @@ pub enum LatticeError {
     #[error("{at}: level `{name}` is defined twice (first on line {first_line}); give each level its own name")]
     DuplicateLevel {
         /// Where the second definition is.
-        at: Place,
+        at: Box<Place>,
         /// The name.
         name: String,
         /// Line of the first definition.
@@ -290,7 +290,7 @@ pub enum LatticeError {
     #[error("{at}: level `{level}` has no cluster shape; give a list of shapes, e.g. [[[a, [0, 0]], [a, [1, 0]], [a, [0, 1]]]], or `block: [2, 2]`")]
     EmptyLevel {
         /// Where the level is.
-        at: Place,
+        at: Box<Place>,
         /// Level name.
         level: String,
     },
@@ -298,7 +298,7 @@ pub enum LatticeError {
     #[error("{at}: this cluster of level `{level}` has {sites} site(s); a cluster needs at least 2 (single sites and bonds are the `site` and `pair` levels)")]
     ClusterTooSmall {
         /// Where the shape is.
-        at: Place,
+        at: Box<Place>,
         /// Level name.
         level: String,
         /// Sites it has.
@@ -308,7 +308,7 @@ pub enum LatticeError {
     #[error("{at}: this cluster of level `{level}` has {sites} sites, more than the limit of {limit} (the engine stores 2^n states per cluster); choose a smaller shape or block")]
     ClusterOverLimit {
         /// Where the shape or block is.
-        at: Place,
+        at: Box<Place>,
         /// Level name.
         level: String,
         /// Sites it would have (saturating for absurd blocks).
@@ -322,7 +322,7 @@ pub enum LatticeError {
     )]
     RepeatedClusterSite {
         /// Where the second listing is.
-        at: Place,
+        at: Box<Place>,
         /// Basis site name.
         site: String,
         /// Cell offset, e.g. `[1, 0]`.
@@ -332,7 +332,7 @@ pub enum LatticeError {
     #[error("{at}: this cluster of level `{level}` is not connected through bonds of the lattice: {unreached} cannot be reached from {start}; add the sites that link them, or check the cell offsets")]
     DisconnectedCluster {
         /// Where the shape is.
-        at: Place,
+        at: Box<Place>,
         /// Level name.
         level: String,
         /// First site, e.g. "`a` [0, 0]".
@@ -344,7 +344,7 @@ pub enum LatticeError {
     #[error("{at}: block size {value} is not allowed; each entry must be a whole number ≥ 1, e.g. block: [2, 2]")]
     BadBlock {
         /// Where the entry is.
-        at: Place,
+        at: Box<Place>,
         /// The entry as written.
         value: String,
     },
@@ -354,7 +354,7 @@ pub enum LatticeError {
     #[error("{at}: reference tc {value} must be a finite number > 0 (a critical temperature in units of the couplings, k_B = 1)")]
     BadReference {
         /// Where `tc` is.
-        at: Place,
+        at: Box<Place>,
         /// The value as written.
         value: String,
     },

@@ -33,7 +33,11 @@ impl Torus {
     /// Build the `size` torus (one entry per dimension, each ≥ 1).
     pub fn new(lattice: &Lattice, size: &[usize]) -> Result<Torus, LatticeError> {
         let d = lattice.dimension();
-        let label = size.iter().map(|s| s.to_string()).collect::<Vec<_>>().join("x");
+        let label = size
+            .iter()
+            .map(|s| s.to_string())
+            .collect::<Vec<_>>()
+            .join("x");
         if size.len() != d || size.contains(&0) {
             return Err(LatticeError::BadTorus {
                 size: label,
@@ -49,7 +53,10 @@ impl Torus {
             for c1 in 0..l[1] {
                 for c0 in 0..l[0] {
                     for a in 0..nb {
-                        graph.add_node(TorusSite { basis: a, cell: [c0, c1, c2] });
+                        graph.add_node(TorusSite {
+                            basis: a,
+                            cell: [c0, c1, c2],
+                        });
                     }
                 }
             }
@@ -66,7 +73,11 @@ impl Torus {
                         let i = index(b.from, [c0, c1, c2]);
                         let j = index(
                             b.to,
-                            [c0 + b.cell[0] as i64, c1 + b.cell[1] as i64, c2 + b.cell[2] as i64],
+                            [
+                                c0 + b.cell[0] as i64,
+                                c1 + b.cell[1] as i64,
+                                c2 + b.cell[2] as i64,
+                            ],
                         );
                         if i == j {
                             return Err(LatticeError::BadTorus {
@@ -89,7 +100,11 @@ impl Torus {
                 }
             }
         }
-        Ok(Torus { size: l, sites_per_cell: nb, graph })
+        Ok(Torus {
+            size: l,
+            sites_per_cell: nb,
+            graph,
+        })
     }
 
     /// Cells per direction (unused dimensions 1).

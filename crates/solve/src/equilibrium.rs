@@ -7,7 +7,7 @@
 //! A failed line search raises μ, turning the step toward steepest descent, so every
 //! accepted step lowers F (the same guarantee as Kikuchi's natural iteration, 1974).
 
-use nalgebra::DVector;
+use nalgebra::{DMatrix, DVector};
 
 use crate::error::SolveError;
 use crate::functional::{Block, Evaluation, Functional};
@@ -49,12 +49,54 @@ fn block_norm(g: &[f64], block: &Block) -> f64 {
     block.vars.iter().map(|&v| g[v].abs()).fold(0.0, f64::max)
 }
 
-/// Minimise `f` over the variables of `block`, the others held at their values in `x0`.
-pub fn minimise(
+/// How a Newton step is computed: assemble the Hessian on the free block, then solve
+/// shifted systems `(H + μ I) d = r` (None when not positive definite).
+pub trait HessianSolver {
+    /// Assemble the Hessian of `f` at `x` on `block`; false if `x` is infeasible.
+    fn assemble(&mut self, f: &Functional, x: &[f64], block: &Block) -> bool;
+    /// Largest |diagonal entry| (the scale of shifts).
+    fn scale(&self) -> f64;
+    /// Solve `(H + μ I) d = rhs`, `None` if the shifted matrix is not positive definite.
+    fn solve_shifted(&self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>>;
+}
+
+/// The dense nalgebra Hessian of [`Functional::hessian_block`] with Cholesky solves.
+#[derive(Debug, Default)]
+pub struct DenseSolver {
+    h: Option<DMatrix<f64>>,
+}
+
+impl HessianSolver for DenseSolver {
+    fn assemble(&mut self, f: &Functional, x: &[f64], block: &Block) -> bool {
+        self.h = f.hessian_block(x, &block.vars, &block.pos);
+        self.h.is_some()
+    }
+    fn scale(&self) -> f64 {
+        self.h.as_ref().map_or(1.0, |h| h.diagonal().amax().max(1e-300))
+    }
+    fn solve_shifted(&self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>> {
+        let mut m = self.h.clone()?;
+        for i in 0..m.nrows() {
+            m[(i, i)] += mu;
+        }
+        let chol = m.cholesky()?;
+        Some(chol.solve(&DVector::from_column_slice(rhs)).as_slice().to_vec())
+    }
+}
+
+/// Minimise `f` over the variables of `block`, the others held at their values in `x0`,
+/// with dense nalgebra Hessians.
+pub fn minimise(f: &Functional, x0: Vec<f64>, block: &Block, options: NewtonOptions) -> Result<Solution, SolveError> {
+    minimise_with(f, x0, block, options, &mut DenseSolver::default())
+}
+
+/// Minimise `f` over `block` with the given Hessian solver.
+pub fn minimise_with(
     f: &Functional,
     x0: Vec<f64>,
     block: &Block,
     options: NewtonOptions,
+    solver: &mut dyn HessianSolver,
 ) -> Result<Solution, SolveError> {
     let level = f.level().name.clone();
     let (t, h) = (f.temperature(), f.field());
@@ -72,34 +114,28 @@ pub fn minimise(
                 iterations: it,
             });
         }
-        let g = block.gather(&ev.gradient);
-        let Some(hess) = f.hessian_block(&x, &block.vars, &block.pos) else {
+        let g: Vec<f64> = block.vars.iter().map(|&v| ev.gradient[v]).collect();
+        if !solver.assemble(f, &x, block) {
             break;
-        };
-        let scale = (0..hess.nrows())
-            .map(|i| hess[(i, i)].abs())
-            .fold(1e-300, f64::max);
+        }
+        let scale = solver.scale();
         let mut accepted = false;
         for _attempt in 0..40 {
-            let mut m = hess.clone();
-            for i in 0..m.nrows() {
-                m[(i, i)] += mu;
-            }
-            let Some(chol) = m.cholesky() else {
+            let Some(mut d) = solver.solve_shifted(mu, &g) else {
                 mu = if mu == 0.0 { 1e-10 * scale } else { mu * 10.0 };
                 continue;
             };
-            let d: DVector<f64> = -chol.solve(&g);
+            d.iter_mut().for_each(|v| *v = -*v);
             // At the rounding floor of the gradient (big clusters at low T: ln p of tiny
             // probabilities) Newton asks for steps below the resolution of ξ: converged.
-            if mu == 0.0 && d.amax() < 1e-13 && gn < ROUNDING_FLOOR {
+            if mu == 0.0 && d.iter().all(|v| v.abs() < 1e-13) && gn < ROUNDING_FLOOR {
                 return Ok(Solution {
                     x,
                     evaluation: ev,
                     iterations: it,
                 });
             }
-            let slope = g.dot(&d);
+            let slope: f64 = g.iter().zip(&d).map(|(a, b)| a * b).sum();
             let mut alpha = 1.0;
             let mut xn = x.clone();
             for _ in 0..50 {

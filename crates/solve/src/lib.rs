@@ -9,6 +9,7 @@
 //! Conventions: spins ±1, `H = −Σ J s_i s_j − h Σ s_i`, k_B = 1; the functional is per
 //! unit cell, every reported observable per site.
 
+pub mod big;
 pub mod equilibrium;
 pub mod error;
 pub mod extrapolate;

@@ -72,6 +72,9 @@ pub struct TcOptions {
     pub relative_tolerance: f64,
     /// Give up (no Tc) below this fraction of the mean-field Tc.
     pub lowest_fraction: f64,
+    /// A temperature believed to lie above this level's Tc (e.g. the Tc of the next
+    /// smaller cluster): where the search of a big level starts. `None`: mean field.
+    pub start_below: Option<f64>,
 }
 
 impl Default for TcOptions {
@@ -79,6 +82,7 @@ impl Default for TcOptions {
         TcOptions {
             relative_tolerance: 1e-9,
             lowest_fraction: 0.02,
+            start_below: None,
         }
     }
 }
@@ -193,7 +197,9 @@ pub fn critical_temperature(
     level: &Level,
     options: TcOptions,
 ) -> Result<CriticalPoint, SolveError> {
-    crate::functional::check_size(level)?;
+    if crate::functional::check_size(level).is_err() {
+        return crate::big::critical_temperature_big(lattice, level, options, options.start_below);
+    }
     let start = Instant::now();
     let scale = mean_field_scale(lattice).max(1e-12);
     let ops = symmetry::level_group(level, &symmetry::point_group(lattice));
@@ -373,7 +379,7 @@ fn search(
 }
 
 /// Normalise site components (largest |·| = 1, first non-zero positive) and classify.
-fn classify(components: &[f64]) -> (Vec<f64>, ModeKind) {
+pub(crate) fn classify(components: &[f64]) -> (Vec<f64>, ModeKind) {
     let big = components.iter().fold(0.0f64, |a, &b| a.max(b.abs()));
     if big < 1e-8 {
         return (vec![0.0; components.len()], ModeKind::Hidden);

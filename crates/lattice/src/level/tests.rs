@@ -5,7 +5,12 @@ use super::*;
 use crate::model::{Bond, LevelSpec, Site};
 
 /// A one-site-per-cell (or `nb`-site) lattice from bond and shape lists.
-fn lattice(dim: usize, nb: usize, bonds: &[(usize, usize, Cell)], levels: &[(&str, Vec<Vec<(usize, Cell)>>)]) -> Lattice {
+fn lattice(
+    dim: usize,
+    nb: usize,
+    bonds: &[(usize, usize, Cell)],
+    levels: &[(&str, Vec<Vec<(usize, Cell)>>)],
+) -> Lattice {
     let mut vectors = vec![[0.0; 3]; dim];
     for (k, v) in vectors.iter_mut().enumerate() {
         v[k] = 1.0;
@@ -15,29 +20,49 @@ fn lattice(dim: usize, nb: usize, bonds: &[(usize, usize, Cell)], levels: &[(&st
         description: None,
         dimension: dim,
         vectors,
-        basis: (0..nb).map(|a| Site { name: format!("s{a}"), position: [0.0; 3] }).collect(),
+        basis: (0..nb)
+            .map(|a| Site {
+                name: format!("s{a}"),
+                position: [0.0; 3],
+            })
+            .collect(),
         couplings: vec![("J".into(), 1.0)],
         field: 0.0,
         bonds: bonds
             .iter()
-            .map(|&(from, to, cell)| Bond { from, to, cell, coupling: "J".into(), j: 1.0 })
+            .map(|&(from, to, cell)| Bond {
+                from,
+                to,
+                cell,
+                coupling: "J".into(),
+                j: 1.0,
+            })
             .collect(),
         levels: levels
             .iter()
-            .map(|(n, s)| LevelSpec { name: n.to_string(), shapes: s.clone() })
+            .map(|(n, s)| LevelSpec {
+                name: n.to_string(),
+                shapes: s.clone(),
+            })
             .collect(),
         reference: None,
     }
 }
 
 fn block2(nx: i32, ny: i32) -> Vec<(usize, Cell)> {
-    (0..ny).flat_map(|y| (0..nx).map(move |x| (0usize, [x, y, 0]))).collect()
+    (0..ny)
+        .flat_map(|y| (0..nx).map(move |x| (0usize, [x, y, 0])))
+        .collect()
 }
 
 /// (sites, coefficient) of every region with a non-zero coefficient, sorted.
 fn summary(level: &Level) -> Vec<(usize, i64)> {
-    let mut v: Vec<(usize, i64)> =
-        level.regions.iter().filter(|r| r.coefficient != 0).map(|r| (r.cluster.len(), r.coefficient)).collect();
+    let mut v: Vec<(usize, i64)> = level
+        .regions
+        .iter()
+        .filter(|r| r.coefficient != 0)
+        .map(|r| (r.cluster.len(), r.coefficient))
+        .collect();
     v.sort();
     v
 }
@@ -47,7 +72,11 @@ fn square() -> Lattice {
         2,
         1,
         &[(0, 0, [1, 0, 0]), (0, 0, [0, 1, 0])],
-        &[("plaquette", vec![block2(2, 2)]), ("block3", vec![block2(3, 3)]), ("block4", vec![block2(4, 4)])],
+        &[
+            ("plaquette", vec![block2(2, 2)]),
+            ("block3", vec![block2(3, 3)]),
+            ("block4", vec![block2(4, 4)]),
+        ],
     )
 }
 
@@ -105,7 +134,10 @@ fn triangular_triangles() {
         )],
     );
     let l = Level::build(&t, "triangles").unwrap();
-    assert_eq!(summary(&l), vec![(1, 1), (2, -1), (2, -1), (2, -1), (3, 1), (3, 1)]);
+    assert_eq!(
+        summary(&l),
+        vec![(1, 1), (2, -1), (2, -1), (2, -1), (3, 1), (3, 1)]
+    );
     assert_eq!(l.sum_rule(), 1);
 }
 
@@ -113,11 +145,29 @@ fn triangular_triangles() {
 fn simple_cubic_cube() {
     // Cube approximation: cube +1, each face −1 (3 orientations), each edge +1 (3), site
     // −1 (inclusion–exclusion on the cubic lattice; checked by hand).
-    let cube: Vec<(usize, Cell)> =
-        (0..8).map(|k| (0usize, [k & 1, (k >> 1) & 1, (k >> 2) & 1])).collect();
-    let sc = lattice(3, 1, &[(0, 0, [1, 0, 0]), (0, 0, [0, 1, 0]), (0, 0, [0, 0, 1])], &[("cube", vec![cube])]);
+    let cube: Vec<(usize, Cell)> = (0..8)
+        .map(|k| (0usize, [k & 1, (k >> 1) & 1, (k >> 2) & 1]))
+        .collect();
+    let sc = lattice(
+        3,
+        1,
+        &[(0, 0, [1, 0, 0]), (0, 0, [0, 1, 0]), (0, 0, [0, 0, 1])],
+        &[("cube", vec![cube])],
+    );
     let l = Level::build(&sc, "cube").unwrap();
-    assert_eq!(summary(&l), vec![(1, -1), (2, 1), (2, 1), (2, 1), (4, -1), (4, -1), (4, -1), (8, 1)]);
+    assert_eq!(
+        summary(&l),
+        vec![
+            (1, -1),
+            (2, 1),
+            (2, 1),
+            (2, 1),
+            (4, -1),
+            (4, -1),
+            (4, -1),
+            (8, 1)
+        ]
+    );
     assert_eq!(l.sum_rule(), 1);
 }
 
@@ -134,18 +184,48 @@ fn fcc_tetrahedra() {
         (0, 0, [0, 1, -1]),
         (0, 0, [1, 0, -1]),
     ];
-    let up = vec![(0, [0, 0, 0]), (0, [1, 0, 0]), (0, [0, 1, 0]), (0, [0, 0, 1])];
-    let down = vec![(0, [1, 0, 0]), (0, [0, 1, 0]), (0, [0, 0, 1]), (0, [1, 1, 1])];
+    let up = vec![
+        (0, [0, 0, 0]),
+        (0, [1, 0, 0]),
+        (0, [0, 1, 0]),
+        (0, [0, 0, 1]),
+    ];
+    let down = vec![
+        (0, [1, 0, 0]),
+        (0, [0, 1, 0]),
+        (0, [0, 0, 1]),
+        (0, [1, 1, 1]),
+    ];
     let _ = down.clone();
     // The second tetrahedron: sites a1, a2, a3 and a1+a2+a3 − ... use the inverted one
     // −(0, a1, a2, a3) translated by a1+a2+a3 is not an nn tetrahedron; the inverted
     // tetrahedron is {0, −a1, −a2, −a3}.
-    let inverted = vec![(0, [0, 0, 0]), (0, [-1, 0, 0]), (0, [0, -1, 0]), (0, [0, 0, -1])];
+    let inverted = vec![
+        (0, [0, 0, 0]),
+        (0, [-1, 0, 0]),
+        (0, [0, -1, 0]),
+        (0, [0, 0, -1]),
+    ];
     let f = lattice(3, 1, &bonds, &[("tetrahedra", vec![up, inverted])]);
     let l = Level::build(&f, "tetrahedra").unwrap();
-    let total_pairs: i64 = l.regions.iter().filter(|r| r.cluster.len() == 2).map(|r| r.coefficient).sum();
-    let total_tets: i64 = l.regions.iter().filter(|r| r.cluster.len() == 4).map(|r| r.coefficient).sum();
-    let site: i64 = l.regions.iter().filter(|r| r.cluster.len() == 1).map(|r| r.coefficient).sum();
+    let total_pairs: i64 = l
+        .regions
+        .iter()
+        .filter(|r| r.cluster.len() == 2)
+        .map(|r| r.coefficient)
+        .sum();
+    let total_tets: i64 = l
+        .regions
+        .iter()
+        .filter(|r| r.cluster.len() == 4)
+        .map(|r| r.coefficient)
+        .sum();
+    let site: i64 = l
+        .regions
+        .iter()
+        .filter(|r| r.cluster.len() == 1)
+        .map(|r| r.coefficient)
+        .sum();
     assert_eq!((total_tets, total_pairs, site), (2, -6, 5));
     assert_eq!(l.sum_rule(), 1);
 }
@@ -154,12 +234,27 @@ fn fcc_tetrahedra() {
 fn site_level_factorises_every_bond() {
     let l = Level::build(&square(), "site").unwrap();
     assert_eq!(l.variables.len(), 1);
-    assert!(l.bond_terms.iter().all(|b| matches!(b, BondTerm::Factorised { .. })));
+    assert!(l
+        .bond_terms
+        .iter()
+        .all(|b| matches!(b, BondTerm::Factorised { .. })));
 }
 
 #[test]
 fn oversized_cluster_is_refused_before_building() {
-    let sq = lattice(2, 1, &[(0, 0, [1, 0, 0]), (0, 0, [0, 1, 0])], &[("block5", vec![block2(5, 5)])]);
+    let sq = lattice(
+        2,
+        1,
+        &[(0, 0, [1, 0, 0]), (0, 0, [0, 1, 0])],
+        &[("block5", vec![block2(5, 5)])],
+    );
     let e = Level::build(&sq, "block5").unwrap_err();
-    assert!(matches!(e, LatticeError::ClusterTooLarge { sites: 25, limit: MAX_CLUSTER_SITES, .. }));
+    assert!(matches!(
+        e,
+        LatticeError::ClusterTooLarge {
+            sites: 25,
+            limit: MAX_CLUSTER_SITES,
+            ..
+        }
+    ));
 }
