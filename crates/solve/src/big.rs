@@ -69,6 +69,8 @@ fn site_permutation(region: &Cluster, op: &SiteMap) -> Option<Vec<usize>> {
 pub struct SymmetricSolver {
     plans: Vec<RegionPlan>,
     h: Option<Mat<f64>>,
+    /// Cholesky factor of the unshifted H, kept for chord steps.
+    factor: Option<faer::linalg::solvers::Llt<f64>>,
     scratch: Vec<f64>,
 }
 
@@ -105,7 +107,7 @@ impl SymmetricSolver {
                 RegionPlan { n, coefficient: r.coefficient as f64, vars: r.subset_vars.clone(), reps }
             })
             .collect();
-        SymmetricSolver { plans, h: None, scratch: Vec::new() }
+        SymmetricSolver { plans, h: None, factor: None, scratch: Vec::new() }
     }
 
     /// The reduced Hessian of `f` (on the reduced level) at `x`, on `block`.
@@ -178,20 +180,29 @@ impl SymmetricSolver {
 impl HessianSolver for SymmetricSolver {
     fn assemble(&mut self, f: &Functional, x: &[f64], block: &Block) -> bool {
         self.h = self.hessian(f, x, block);
+        self.factor = None;
         self.h.is_some()
+    }
+    fn has_factor(&self) -> bool {
+        self.factor.is_some()
     }
     fn scale(&self) -> f64 {
         self.h.as_ref().map_or(1.0, |h| (0..h.nrows()).map(|i| h[(i, i)].abs()).fold(1e-300, f64::max))
     }
-    fn solve_shifted(&self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>> {
-        let h = self.h.as_ref()?;
-        let mut m = h.clone();
-        for i in 0..m.nrows() {
-            m[(i, i)] += mu;
-        }
-        let llt = m.llt(Side::Lower).ok()?;
+    fn solve_shifted(&mut self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>> {
         let mut b = Mat::from_fn(rhs.len(), 1, |i, _| rhs[i]);
-        llt.solve_in_place(b.as_mut());
+        if mu == 0.0 {
+            if self.factor.is_none() {
+                self.factor = Some(self.h.as_ref()?.llt(Side::Lower).ok()?);
+            }
+            self.factor.as_ref()?.solve_in_place(b.as_mut());
+        } else {
+            let mut m = self.h.clone()?;
+            for i in 0..m.nrows() {
+                m[(i, i)] += mu;
+            }
+            m.llt(Side::Lower).ok()?.solve_in_place(b.as_mut());
+        }
         Some((0..rhs.len()).map(|i| b[(i, 0)]).collect())
     }
 }
@@ -206,12 +217,19 @@ struct BigProbe<'a> {
     solver: std::cell::RefCell<SymmetricSolver>,
     warm: std::cell::RefCell<Vec<f64>>,
     error: std::cell::RefCell<Option<SolveError>>,
+    /// g(T) already computed (the root finder asks for its bracket ends again).
+    cache: std::cell::RefCell<Vec<(f64, f64, bool)>>,
 }
 
 impl BigProbe<'_> {
     /// `g(T) = 1/(bᵀ H_odd⁻¹ b)` at the paramagnet, and whether H_odd is positive definite.
     fn g(&self, t: f64) -> Result<(f64, bool), SolveError> {
-        self.g_with_response(t).map(|(g, pd, _)| (g, pd))
+        if let Some(&(_, g, pd)) = self.cache.borrow().iter().find(|c| c.0 == t) {
+            return Ok((g, pd));
+        }
+        let (g, pd, _) = self.g_with_response(t)?;
+        self.cache.borrow_mut().push((t, g, pd));
+        Ok((g, pd))
     }
 
     /// `g(T)`, positive definiteness, and the response `H_odd⁻¹ b` on the orbits.
@@ -220,7 +238,7 @@ impl BigProbe<'_> {
         let start = self.warm.borrow().clone();
         let start = if f.feasible(&start) { start } else { product_state(&f, 0.0) };
         let mut solver = self.solver.borrow_mut();
-        let opts = NewtonOptions { tolerance: 1e-10, max_iterations: 100 };
+        let opts = NewtonOptions { tolerance: 1e-10, max_iterations: 100, chord: true };
         let sol = minimise_with(&f, start, &self.even, opts, &mut *solver)?;
         let h = solver.hessian(&f, &sol.x, &self.odd).ok_or_else(|| SolveError::TcSearch {
             level: f.level().name.clone(),
@@ -300,6 +318,7 @@ pub fn critical_temperature_big(
         solver: std::cell::RefCell::new(SymmetricSolver::new(&red, &ops)),
         warm: std::cell::RefCell::new(Vec::new()),
         error: std::cell::RefCell::new(None),
+        cache: std::cell::RefCell::new(Vec::new()),
     };
     *probe.warm.borrow_mut() = product_state(&probe.f, 0.0);
     let scale = crate::tc::mean_field_scale(lattice).max(1e-12);
@@ -350,8 +369,7 @@ pub fn critical_temperature_big(
             seconds: start.elapsed().as_secs_f64(),
         });
     };
-    // Warm start at the upper end, then Brent on g over the bracket.
-    probe.g(t_hi)?;
+    // Brent on g over the bracket (its ends come from the cache).
     let solver = BrentRoot::new(t_lo, t_hi, options.relative_tolerance * t_hi);
     let tc = match Executor::new(GRoot(&probe), solver).configure(|s| s.max_iters(100)).run() {
         Ok(r) => r.state.best_param.unwrap_or(0.5 * (t_lo + t_hi)),
@@ -361,10 +379,12 @@ pub fn critical_temperature_big(
         }
     };
     // Amplitude: χ = bᵀH⁻¹b / N_b = 1/(N_b g), g ≈ g'(T − Tc) ⇒ χ̄ = 1/(N_b g'(Tc)).
-    let dt = 1e-5 * tc;
+    // Wide enough that the rounding floor of g (big clusters) is negligible, narrow
+    // enough that its curvature is: g is linear to O(dt/Tc) = 10⁻³ here.
+    let dt = 1e-3 * tc;
     let (g_up, _, response) = probe.g_with_response(tc + dt)?;
-    let (g_at, _) = probe.g(tc)?;
-    let slope = (g_up - g_at) / dt;
+    let (g_down, _) = probe.g(tc - dt)?;
+    let slope = (g_up - g_down) / (2.0 * dt);
     let amplitude = (slope > 0.0).then(|| 1.0 / (nb as f64 * slope));
     // Just above Tc the response H⁻¹e is dominated by the critical mode; its value on
     // a site's orbit is that site's component.

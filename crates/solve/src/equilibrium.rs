@@ -19,6 +19,8 @@ pub struct NewtonOptions {
     pub tolerance: f64,
     /// Give up after this many iterations.
     pub max_iterations: usize,
+    /// Allow chord steps with an earlier factorisation (big levels).
+    pub chord: bool,
 }
 
 impl Default for NewtonOptions {
@@ -26,6 +28,7 @@ impl Default for NewtonOptions {
         NewtonOptions {
             tolerance: 1e-11,
             max_iterations: 200,
+            chord: false,
         }
     }
 }
@@ -45,6 +48,10 @@ pub struct Solution {
 /// the variables (the rounding floor of WHT-computed gradients).
 const ROUNDING_FLOOR: f64 = 1e-7;
 
+/// Largest gradient accepted as converged when three Newton steps in a row fail to
+/// shrink it (the rounding floor of big clusters).
+const STAGNATION_FLOOR: f64 = 1e-5;
+
 fn block_norm(g: &[f64], block: &Block) -> f64 {
     block.vars.iter().map(|&v| g[v].abs()).fold(0.0, f64::max)
 }
@@ -57,7 +64,12 @@ pub trait HessianSolver {
     /// Largest |diagonal entry| (the scale of shifts).
     fn scale(&self) -> f64;
     /// Solve `(H + μ I) d = rhs`, `None` if the shifted matrix is not positive definite.
-    fn solve_shifted(&self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>>;
+    fn solve_shifted(&mut self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>>;
+    /// Whether an unshifted factorisation from an earlier point is at hand, so that a
+    /// chord step (old factor, new gradient) can be tried without assembling.
+    fn has_factor(&self) -> bool {
+        false
+    }
 }
 
 /// The dense nalgebra Hessian of [`Functional::hessian_block`] with Cholesky solves.
@@ -74,7 +86,7 @@ impl HessianSolver for DenseSolver {
     fn scale(&self) -> f64 {
         self.h.as_ref().map_or(1.0, |h| h.diagonal().amax().max(1e-300))
     }
-    fn solve_shifted(&self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>> {
+    fn solve_shifted(&mut self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>> {
         let mut m = self.h.clone()?;
         for i in 0..m.nrows() {
             m[(i, i)] += mu;
@@ -105,8 +117,24 @@ pub fn minimise_with(
         return Err(SolveError::InfeasibleStart { level, t, h });
     };
     let mut mu = 0.0f64;
+    // Stagnation at the rounding floor: the gradient stops shrinking while already
+    // tiny (big clusters: WHT sums of 2^16 logarithms, summed again over orbits).
+    let mut best = f64::INFINITY;
+    let mut stalled = 0;
+    let mut last_gn = f64::INFINITY;
     for it in 0..options.max_iterations {
         let gn = block_norm(&ev.gradient, block);
+        if gn < 0.9 * best {
+            best = gn;
+            stalled = 0;
+        } else {
+            stalled += 1;
+        }
+        if stalled >= 3 && gn < STAGNATION_FLOOR {
+            return Ok(Solution { x, evaluation: ev, iterations: it });
+        }
+        let last_ratio = if last_gn.is_finite() { gn / last_gn } else { 0.0 };
+        last_gn = gn;
         if gn <= options.tolerance {
             return Ok(Solution {
                 x,
@@ -115,7 +143,10 @@ pub fn minimise_with(
             });
         }
         let g: Vec<f64> = block.vars.iter().map(|&v| ev.gradient[v]).collect();
-        if !solver.assemble(f, &x, block) {
+        // Chord step: keep the last factor while it shrinks the gradient fourfold per
+        // step; otherwise assemble and factor afresh.
+        let chord = options.chord && mu == 0.0 && solver.has_factor() && last_ratio < 0.25;
+        if !chord && !solver.assemble(f, &x, block) {
             break;
         }
         let scale = solver.scale();
