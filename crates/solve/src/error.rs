@@ -22,6 +22,16 @@ pub enum SolveError {
         /// The tolerance asked for.
         tolerance: f64,
     },
+    /// The paramagnet is unstable but no ordered minimum below it was found.
+    #[error("level `{level}` at T = {t}, h = {h}: the paramagnetic solution is unstable and no ordered minimum with lower free energy was found; try a supercell (--supercell) if the order breaks the cell's translations")]
+    NoStableState {
+        /// Level name.
+        level: String,
+        /// Temperature.
+        t: f64,
+        /// Field.
+        h: f64,
+    },
     /// A starting point with a non-positive cluster probability.
     #[error("level `{level}` at T = {t}, h = {h}: the starting point has a non-positive cluster probability")]
     InfeasibleStart {

@@ -93,42 +93,45 @@ pub fn equilibrium(
             product_state(&f, 0.0)
         }
     };
-    let para = minimise(&f, para_start, &even, opts)?;
-    if odd_sector_stable(&f, &para.x) {
-        return Ok(State {
-            t,
-            h,
-            solution: para,
-            branch: Branch::Paramagnetic,
-        });
+    // Continuing an ordered branch (a sweep below Tc): the ordered minimum first. Newton
+    // from an ordered warm start reaches m = 0 by itself once the order is gone.
+    let ordered_warm = feasible_warm.as_ref().filter(|w| magnetization(level, w).abs() > 1e-6).cloned();
+    if let Some(mut start) = ordered_warm.clone() {
+        if magnetization(level, &start) < 0.0 {
+            flip(level, &mut start);
+        }
+        if let Ok(ord) = minimise(&f, start, &all, opts) {
+            if magnetization(level, &ord.x) > 1e-6 {
+                return Ok(State { t, h, solution: ord, branch: Branch::Ordered });
+            }
+        }
     }
-    // Ordered branch: start from the warm point if it is ordered, else a product state.
-    let mut start = feasible_warm
-        .filter(|w| magnetization(level, w).abs() > 1e-6)
-        .unwrap_or_else(|| product_state(&f, 0.9));
+    let para = minimise(&f, para_start, &even, opts);
+    if let Ok(para) = &para {
+        if odd_sector_stable(&f, &para.x) {
+            return Ok(State { t, h, solution: para.clone(), branch: Branch::Paramagnetic });
+        }
+    }
+    // The paramagnet is unstable (or could not be followed): the ordered branch.
+    let mut start = ordered_warm.unwrap_or_else(|| product_state(&f, 0.9));
     if magnetization(level, &start) < 0.0 {
         flip(level, &mut start);
     }
-    match solve_with_restarts(&f, start, &all, opts, 0.9) {
-        Ok(mut ord) if ord.evaluation.free_energy < para.evaluation.free_energy => {
-            if magnetization(level, &ord.x) < 0.0 {
-                flip(level, &mut ord.x);
-                ord = minimise(&f, ord.x, &all, opts)?;
-            }
-            Ok(State {
-                t,
-                h,
-                solution: ord,
-                branch: Branch::Ordered,
-            })
+    let mut ord = match solve_with_restarts(&f, start, &all, opts, 0.9) {
+        Ok(ord) => ord,
+        // Never hand back an unstable paramagnet as if it were the equilibrium.
+        Err(e) => return Err(para.err().unwrap_or(e)),
+    };
+    if let Ok(para) = &para {
+        if ord.evaluation.free_energy >= para.evaluation.free_energy || magnetization(level, &ord.x).abs() <= 1e-6 {
+            return Err(SolveError::NoStableState { level: level.name.clone(), t, h });
         }
-        _ => Ok(State {
-            t,
-            h,
-            solution: para,
-            branch: Branch::Paramagnetic,
-        }),
     }
+    if magnetization(level, &ord.x) < 0.0 {
+        flip(level, &mut ord.x);
+        ord = minimise(&f, ord.x, &all, opts)?;
+    }
+    Ok(State { t, h, solution: ord, branch: Branch::Ordered })
 }
 
 /// Spin reversal: every odd correlation changes sign.

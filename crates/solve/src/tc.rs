@@ -211,14 +211,15 @@ pub fn critical_temperature(
             size[o] += 1;
         }
         let norm: Vec<f64> = size.iter().map(|&d| 1.0 / (d as f64).sqrt()).collect();
-        let (sym, y) = search(scale, &reduced, norm, options)?;
-        if let Some(tc) = sym.tc {
+        // Any failure of the symmetric search (no Tc, or a paramagnet that cannot be
+        // followed because a less symmetric order sets in first) defers to the full one.
+        if let Ok((sym @ CriticalPoint { tc: Some(tc), .. }, y)) = search(scale, &reduced, norm, options) {
             let t_check = tc * (1.0 + 1e-6);
             let x: Vec<f64> = orbit_of.iter().map(|&o| y[o]).collect();
             let f = Functional::new(level, t_check, 0.0);
             // Re-solve the paramagnet at t_check so that the check is exact there.
-            let para = minimise(&f, x, &Block::even(level), NewtonOptions::default())?;
-            if crate::state::odd_sector_stable(&f, &para.x) {
+            let para = minimise(&f, x, &Block::even(level), NewtonOptions::default());
+            if para.is_ok_and(|p| crate::state::odd_sector_stable(&f, &p.x)) {
                 return Ok(CriticalPoint {
                     seconds: start.elapsed().as_secs_f64(),
                     ..sym
@@ -286,7 +287,14 @@ fn search(
                     None => break,
                 }
             }
-            Err(_) => break,
+            Err(e) => {
+                return Err(SolveError::TcSearch {
+                    level: level.name.clone(),
+                    detail: format!(
+                        "stable down to T = {t_lo}, but the paramagnetic solution could not be followed below it ({e}); no Tc can be claimed either way"
+                    ),
+                })
+            }
         };
         // An eigenvalue within rounding of zero (e.g. the chain, where it vanishes only
         // as e^{-2J/T}) cannot say which side of Tc we are on: stop searching there.

@@ -169,3 +169,29 @@ fn field_reversal_flips_the_magnetisation() {
         assert!((a.free_energy - b.free_energy).abs() < 1e-10);
     }
 }
+
+#[test]
+fn plaquette_sweeps_through_tc_both_ways() {
+    // Up and down through Tc at h = 0: every point solved, the ordered branch (m > 0)
+    // followed below Tc, paramagnet above; at T = 1 the plaquette m is within 1e-3 of
+    // Yang's m = (1 − sinh⁻⁴ 2K)^{1/8} = 0.99927 (Yang 1952, Phys. Rev. 85, 808).
+    let l = shipped("square");
+    let lv = level(&l, "plaquette");
+    let up: Vec<f64> = (0..=30).map(|k| 1.0 + 0.1 * k as f64).collect();
+    let down: Vec<f64> = up.iter().rev().copied().collect();
+    for temps in [up, down] {
+        let obs = rungs_solve::sweep(&lv, &temps, &[0.0], &|| {}).unwrap();
+        for o in &obs {
+            let tc = 2.4256657;
+            if o.temperature < tc - 0.01 {
+                assert!(o.magnetization > 0.05, "T={} m={}", o.temperature, o.magnetization);
+            } else if o.temperature > tc + 0.01 {
+                assert!(o.magnetization.abs() < 1e-8, "T={} m={}", o.temperature, o.magnetization);
+            }
+        }
+        let k = 1.0f64;
+        let yang = (1.0 - (2.0 * k).sinh().powi(-4)).powf(0.125);
+        let at1 = obs.iter().find(|o| (o.temperature - 1.0).abs() < 1e-12).unwrap();
+        assert!((at1.magnetization - yang).abs() < 1e-3, "{} vs {yang}", at1.magnetization);
+    }
+}
