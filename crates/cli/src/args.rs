@@ -1,0 +1,287 @@
+//! Command-line arguments, parsed and checked by clap (the "parse" step).
+//!
+//! Everything here is typed and already validated as far as it can be without reading
+//! the lattice file: value lists are parsed by [`crate::list`], `--supercell` by
+//! [`parse_supercell`], formats by [`Format`]. Checks that need the lattice (level names,
+//! supercell dimension) happen in the commands. The options are those of
+//! the command contract (README.md, `rungs --help`), plus `--output FILE` on every
+//! command (our addition: write the report to FILE atomically instead of to standard
+//! output).
+
+use std::path::PathBuf;
+
+use clap::{Args, Parser, Subcommand};
+
+use crate::list::{parse_reals, parse_sizes, parse_temperatures, RealList, SizeList};
+use crate::output::Format;
+
+/// Ising-type spin models on any lattice: mean field → Bethe → Kikuchi clusters,
+/// held against exact results and Monte Carlo.
+#[derive(Debug, Parser)]
+#[command(name = "rungs", version, about, propagate_version = true)]
+pub struct Cli {
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The subcommands of `rungs`.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// What the lattice file describes and what each level builds.
+    Inspect(InspectArgs),
+    /// Critical temperature at each level (default: all levels).
+    Tc(TcArgs),
+    /// Equilibrium thermodynamics along a temperature path.
+    Sweep(SweepArgs),
+    /// Convergence of Tc with cluster size, against references.
+    Ladder(LadderArgs),
+    /// Monte Carlo reference on finite tori of the lattice.
+    Mc(McArgs),
+}
+
+/// Options every command takes.
+#[derive(Debug, Clone, Args)]
+pub struct CommonArgs {
+    /// The lattice file (YAML), e.g. lattices/square.yaml.
+    #[arg(value_name = "LATTICE")]
+    pub lattice: PathBuf,
+    /// Output format: `table` for people; `csv` and `json` are stable, for scripts.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+    /// Write the report to FILE (atomically: a temporary file in the same directory,
+    /// renamed into place) instead of standard output.
+    #[arg(long, value_name = "FILE")]
+    pub output: Option<PathBuf>,
+}
+
+/// `rungs inspect LATTICE`.
+#[derive(Debug, Clone, Args)]
+pub struct InspectArgs {
+    /// The lattice file, `--format` and `--output`.
+    #[command(flatten)]
+    pub common: CommonArgs,
+}
+
+/// `rungs tc LATTICE [--levels a,b] [--supercell 2x2]`.
+#[derive(Debug, Clone, Args)]
+pub struct TcArgs {
+    /// The lattice file, `--format` and `--output`.
+    #[command(flatten)]
+    pub common: CommonArgs,
+    /// Levels to compute, comma-separated (default: every level of the file).
+    #[arg(long, value_delimiter = ',', value_name = "LEVELS")]
+    pub levels: Option<Vec<String>>,
+    /// Enlarge the unit cell, e.g. 2x2, so that order breaking the primitive translations
+    /// (antiferromagnets) can set in; one factor per dimension.
+    #[arg(long, value_parser = parse_supercell, value_name = "N1xN2[xN3]")]
+    pub supercell: Option<Supercell>,
+}
+
+/// `rungs sweep LATTICE --levels a,b --temps T0:T1:dT [--field h | --fields ...]
+/// [--plot FILE.svg]`.
+#[derive(Debug, Clone, Args)]
+pub struct SweepArgs {
+    /// The lattice file, `--format` and `--output`.
+    #[command(flatten)]
+    pub common: CommonArgs,
+    /// Levels to sweep, comma-separated.
+    #[arg(long, required = true, value_delimiter = ',', value_name = "LEVELS")]
+    pub levels: Vec<String>,
+    /// Temperatures: one value, a comma list, or an inclusive range start:stop:step.
+    #[arg(long, value_parser = parse_temperatures, allow_hyphen_values = true, value_name = "LIST")]
+    pub temps: RealList,
+    /// One uniform field h for every point (default: the file's `field`).
+    #[arg(
+        long,
+        allow_negative_numbers = true,
+        conflicts_with = "fields",
+        value_name = "H"
+    )]
+    pub field: Option<f64>,
+    /// Several fields: one value, a comma list, or an inclusive range start:stop:step.
+    #[arg(long, value_parser = parse_reals, allow_hyphen_values = true, value_name = "LIST")]
+    pub fields: Option<RealList>,
+    /// Also draw the sweep into this SVG file.
+    #[arg(long, value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
+}
+
+/// `rungs ladder LATTICE [--up-to N] [--mc] [--plot FILE.svg]`.
+#[derive(Debug, Clone, Args)]
+pub struct LadderArgs {
+    /// The lattice file, `--format` and `--output`.
+    #[command(flatten)]
+    pub common: CommonArgs,
+    /// Climb up to N sites: the file's levels with at most N sites, plus square-ish
+    /// blocks of cells (2x2, 2x3, 3x3, ...) up to N sites as extra rungs.
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..))]
+    pub up_to: Option<u32>,
+    /// Also run a Monte Carlo estimate of Tc as a reference.
+    #[arg(long)]
+    pub mc: bool,
+    /// Also draw the ladder into this SVG file.
+    #[arg(long, value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
+}
+
+/// `rungs mc LATTICE --sizes 8,16,32 --temps ... [--sweeps N] [--warmup N] [--seed S]`.
+#[derive(Debug, Clone, Args)]
+pub struct McArgs {
+    /// The lattice file, `--format` and `--output`.
+    #[command(flatten)]
+    pub common: CommonArgs,
+    /// Linear torus sizes in cells: one value, a comma list, or a range start:stop:step.
+    #[arg(long, value_parser = parse_sizes, value_name = "LIST")]
+    pub sizes: SizeList,
+    /// Temperatures: one value, a comma list, or an inclusive range start:stop:step.
+    #[arg(long, value_parser = parse_temperatures, allow_hyphen_values = true, value_name = "LIST")]
+    pub temps: RealList,
+    /// Measured sweeps per (size, temperature); a sweep flips, on average, as many spins
+    /// as the torus has sites.
+    #[arg(long, default_value_t = 10_000, value_name = "N", value_parser = clap::value_parser!(u64).range(1..))]
+    pub sweeps: u64,
+    /// Sweeps discarded before measuring, per (size, temperature).
+    #[arg(long, default_value_t = 1_000, value_name = "N")]
+    pub warmup: u64,
+    /// Seed of the random-number generator (same seed, same numbers).
+    #[arg(long, default_value_t = 1, value_name = "S")]
+    pub seed: u64,
+}
+
+/// Cell multiples of a supercell, unused dimensions 1 (`2x2` → `[2, 2, 1]`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Supercell {
+    /// Factors along each primitive vector.
+    pub factors: [usize; 3],
+    /// How many factors were written (must equal the lattice's dimension).
+    pub given: usize,
+}
+
+/// Parse `N1[xN2[xN3]]`, each factor a positive integer of at most 64.
+pub fn parse_supercell(text: &str) -> Result<Supercell, String> {
+    let parts: Vec<&str> = text.trim().split(['x', 'X']).collect();
+    if parts.len() > 3 {
+        return Err(format!(
+            "`{text}` has more than three factors: write e.g. 2x2 or 2x2x2"
+        ));
+    }
+    let mut factors = [1usize; 3];
+    for (slot, part) in factors.iter_mut().zip(&parts) {
+        *slot = match part.trim().parse::<usize>() {
+            Ok(n) if (1..=64).contains(&n) => n,
+            _ => {
+                return Err(format!(
+                    "`{part}` in `{text}` is not a factor from 1 to 64: write e.g. 2x2 or 2x2x2"
+                ))
+            }
+        };
+    }
+    Ok(Supercell {
+        factors,
+        given: parts.len(),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use clap::CommandFactory;
+
+    #[test]
+    fn clap_definition_is_consistent() {
+        Cli::command().debug_assert();
+    }
+
+    #[test]
+    fn supercell_factors() {
+        assert_eq!(
+            parse_supercell("2x2").unwrap(),
+            Supercell {
+                factors: [2, 2, 1],
+                given: 2
+            }
+        );
+        assert_eq!(parse_supercell("3").unwrap().factors, [3, 1, 1]);
+        assert!(parse_supercell("2x0").is_err());
+        assert!(parse_supercell("2x2x2x2").is_err());
+        assert!(parse_supercell("axb").is_err());
+    }
+
+    #[test]
+    fn options_of_the_contract_parse() {
+        let cli = Cli::try_parse_from([
+            "rungs",
+            "sweep",
+            "l.yaml",
+            "--levels",
+            "pair,plaquette",
+            "--temps",
+            "1:2:0.5",
+            "--fields",
+            "-0.1,0.1",
+            "--format",
+            "csv",
+        ])
+        .unwrap();
+        let Command::Sweep(a) = cli.command else {
+            panic!("not sweep")
+        };
+        assert_eq!(a.levels, vec!["pair", "plaquette"]);
+        assert_eq!(a.temps.0, vec![1.0, 1.5, 2.0]);
+        assert_eq!(a.fields.unwrap().0, vec![-0.1, 0.1]);
+        assert_eq!(a.common.format, Format::Csv);
+        let cli = Cli::try_parse_from([
+            "rungs", "sweep", "l.yaml", "--levels", "pair", "--temps", "2", "--field", "-0.5",
+        ])
+        .unwrap();
+        let Command::Sweep(a) = cli.command else {
+            panic!("not sweep")
+        };
+        assert_eq!(a.field, Some(-0.5));
+        assert!(Cli::try_parse_from([
+            "rungs", "sweep", "l.yaml", "--levels", "pair", "--temps", "2", "--field", "1",
+            "--fields", "1,2"
+        ])
+        .is_err());
+        let cli = Cli::try_parse_from([
+            "rungs",
+            "mc",
+            "l.yaml",
+            "--sizes",
+            "8,16",
+            "--temps",
+            "2.2:2.4:0.1",
+            "--seed",
+            "7",
+        ])
+        .unwrap();
+        let Command::Mc(a) = cli.command else {
+            panic!("not mc")
+        };
+        assert_eq!((a.sizes.0, a.seed, a.sweeps), (vec![8, 16], 7, 10_000));
+        let cli = Cli::try_parse_from([
+            "rungs",
+            "tc",
+            "l.yaml",
+            "--supercell",
+            "2x2",
+            "--levels",
+            "site",
+        ])
+        .unwrap();
+        let Command::Tc(a) = cli.command else {
+            panic!("not tc")
+        };
+        assert_eq!(a.supercell.unwrap().factors, [2, 2, 1]);
+        let cli = Cli::try_parse_from([
+            "rungs", "ladder", "l.yaml", "--up-to", "9", "--mc", "--output", "x.json",
+        ])
+        .unwrap();
+        let Command::Ladder(a) = cli.command else {
+            panic!("not ladder")
+        };
+        assert_eq!((a.up_to, a.mc), (Some(9), true));
+        assert_eq!(a.common.output, Some(PathBuf::from("x.json")));
+    }
+}

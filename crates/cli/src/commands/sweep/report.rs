@@ -1,0 +1,282 @@
+//! The `rungs sweep` report: a table per level (with the caution notes), CSV with the
+//! columns of the command contract, and JSON points carrying also the sublattice
+//! magnetisations and every bond's correlation. Points left out are listed with why.
+
+use rungs_lattice::Lattice;
+use rungs_reference::closed::ClosedForm;
+use rungs_solve::Observables;
+use serde_json::{json, Map, Value};
+
+use super::{LevelSweep, COLUMNS};
+use crate::commands::tc::{order_note, NOT_BOUNDS_NOTE, ONE_D_NOTE};
+use crate::output::{fixed, num, Block, Grid, Report, TextDoc};
+use crate::plot::sweep::{LevelCurves, SweepFigure};
+
+/// A bond as reported beside its correlation.
+#[derive(Debug, Clone)]
+struct BondLabel {
+    from: String,
+    to: String,
+    cell: Vec<i32>,
+    coupling: String,
+}
+
+/// The full `sweep` result.
+#[derive(Debug, Clone)]
+pub struct SweepReport {
+    lattice: String,
+    dimension: usize,
+    site_names: Vec<String>,
+    bonds: Vec<BondLabel>,
+    fields: Vec<f64>,
+    exact: Option<ClosedForm>,
+    /// One entry per level, in the order asked for.
+    pub levels: Vec<LevelSweep>,
+    notes: Vec<String>,
+}
+
+impl SweepReport {
+    /// Assemble the report of `levels` swept on `lattice` at `fields`.
+    pub fn new(
+        lattice: &Lattice,
+        fields: Vec<f64>,
+        levels: Vec<LevelSweep>,
+        plotted: bool,
+    ) -> SweepReport {
+        let site_names: Vec<String> = lattice.basis().iter().map(|s| s.name.clone()).collect();
+        let bonds = lattice
+            .bonds()
+            .iter()
+            .map(|b| BondLabel {
+                from: site_names[b.from].clone(),
+                to: site_names[b.to].clone(),
+                cell: b.cell[..lattice.dimension()].to_vec(),
+                coupling: b.coupling.clone(),
+            })
+            .collect();
+        let exact = ClosedForm::recognise(lattice);
+        let mut report = SweepReport {
+            lattice: lattice.name().to_string(),
+            dimension: lattice.dimension(),
+            site_names,
+            bonds,
+            fields,
+            exact,
+            levels,
+            notes: Vec::new(),
+        };
+        report.notes = report.make_notes(lattice, plotted);
+        report
+    }
+
+    fn make_notes(&self, lattice: &Lattice, plotted: bool) -> Vec<String> {
+        let mut notes = vec![
+            "per site, k_B = 1: T in units of J/k_B; m magnetisation, U energy, F free energy (J), \
+             S entropy (k_B), C specific heat (k_B), χ = ∂m/∂h."
+                .to_string(),
+            "at h = 0 below a level's Tc the ordered branch with m > 0 is reported; each point is \
+             warm-started from the previous temperature."
+                .to_string(),
+            order_note(lattice, None, false),
+            NOT_BOUNDS_NOTE.to_string(),
+        ];
+        let ordering: Vec<&str> = self
+            .levels
+            .iter()
+            .filter(|l| {
+                l.points
+                    .iter()
+                    .any(|p| p.field == 0.0 && p.magnetization.abs() > 1e-6)
+            })
+            .map(|l| l.level.as_str())
+            .collect();
+        if self.dimension == 1 && !ordering.is_empty() {
+            notes.push(format!(
+                "level(s) `{}` order spontaneously (m ≠ 0 at h = 0) on this 1D lattice — {ONE_D_NOTE}",
+                ordering.join("`, `")
+            ));
+        }
+        for l in &self.levels {
+            for o in &l.omitted {
+                notes.push(format!(
+                    "omitted: level `{}` at T = {}, h = {}: {}",
+                    l.level,
+                    num(o.temperature),
+                    num(o.field),
+                    o.reason
+                ));
+            }
+        }
+        if plotted {
+            if let Some(form) = &self.exact {
+                notes.push(format!(
+                    "plot: exact curves of the {} lattice from {}.",
+                    form.name(),
+                    form.source()
+                ));
+            }
+        }
+        notes
+    }
+
+    /// What the plot draws.
+    pub fn figure(&self) -> SweepFigure<'_> {
+        SweepFigure {
+            lattice: &self.lattice,
+            levels: self
+                .levels
+                .iter()
+                .map(|l| LevelCurves {
+                    level: &l.level,
+                    points: &l.points,
+                    tc: l.tc,
+                })
+                .collect(),
+            fields: &self.fields,
+            exact: self.exact,
+        }
+    }
+
+    fn point_json(&self, level: &str, p: &Observables) -> Value {
+        let sub: Map<String, Value> = self
+            .site_names
+            .iter()
+            .cloned()
+            .zip(p.sublattice_magnetization.iter().map(|m| json!(m)))
+            .collect();
+        let bonds: Vec<Value> = self
+            .bonds
+            .iter()
+            .zip(&p.bond_correlations)
+            .map(|(b, c)| json!({"from": b.from, "to": b.to, "cell": b.cell, "coupling": b.coupling, "correlation": c}))
+            .collect();
+        json!({
+            "level": level,
+            "temperature": p.temperature,
+            "field": p.field,
+            "magnetization": p.magnetization,
+            "energy": p.energy,
+            "free_energy": p.free_energy,
+            "entropy": p.entropy,
+            "specific_heat": p.specific_heat,
+            "susceptibility": p.susceptibility,
+            "sublattice_magnetization": sub,
+            "bond_correlations": bonds,
+        })
+    }
+}
+
+/// A number for a table: 6 decimals, or 6 significant digits in scientific notation
+/// when that would hide it; `-0` printed as `0`.
+fn cell(x: f64) -> String {
+    let x = x + 0.0;
+    let a = x.abs();
+    if a != 0.0 && !(1e-4..1e6).contains(&a) {
+        format!("{x:.5e}")
+    } else {
+        fixed(x, 6)
+    }
+}
+
+impl Report for SweepReport {
+    fn json(&self) -> Result<Value, serde_json::Error> {
+        let points: Vec<Value> = self
+            .levels
+            .iter()
+            .flat_map(|l| l.points.iter().map(|p| self.point_json(&l.level, p)))
+            .collect();
+        let omitted: Vec<Value> = self
+            .levels
+            .iter()
+            .flat_map(|l| {
+                l.omitted.iter().map(|o| {
+                    json!({"level": l.level, "temperature": o.temperature, "field": o.field, "reason": o.reason})
+                })
+            })
+            .collect();
+        Ok(json!({
+            "lattice": self.lattice,
+            "fields": self.fields,
+            "points": points,
+            "omitted": omitted,
+            "notes": self.notes,
+        }))
+    }
+
+    fn csv(&self) -> Grid {
+        let mut grid = Grid::new(COLUMNS);
+        for l in &self.levels {
+            for p in &l.points {
+                grid.push([
+                    l.level.clone(),
+                    num(p.temperature),
+                    num(p.field),
+                    num(p.magnetization),
+                    num(p.energy),
+                    num(p.free_energy),
+                    num(p.entropy),
+                    num(p.specific_heat),
+                    num(p.susceptibility),
+                ]);
+            }
+        }
+        grid
+    }
+
+    fn table(&self) -> TextDoc {
+        let fields: Vec<String> = self.fields.iter().map(|h| num(*h)).collect();
+        let mut blocks = vec![Block::Fields(vec![
+            ("lattice".into(), self.lattice.clone()),
+            ("fields h".into(), fields.join(", ")),
+        ])];
+        for l in &self.levels {
+            blocks.push(Block::Heading(format!(
+                "Level `{}` (largest cluster {} site{}), per site",
+                l.level,
+                l.max_cluster_sites,
+                if l.max_cluster_sites == 1 { "" } else { "s" }
+            )));
+            let mut grid = Grid::new(["T", "h", "m", "U", "F", "S", "C", "χ"]);
+            for p in &l.points {
+                grid.push([
+                    num(p.temperature),
+                    num(p.field),
+                    cell(p.magnetization),
+                    cell(p.energy),
+                    cell(p.free_energy),
+                    cell(p.entropy),
+                    cell(p.specific_heat),
+                    cell(p.susceptibility),
+                ]);
+            }
+            blocks.push(Block::Table(grid));
+            if !l.omitted.is_empty() {
+                blocks.push(Block::Line(format!(
+                    "{} point(s) omitted, see the notes",
+                    l.omitted.len()
+                )));
+            }
+        }
+        TextDoc {
+            title: format!(
+                "rungs sweep: thermodynamics per site, lattice `{}`",
+                self.lattice
+            ),
+            blocks,
+            notes: self.notes.clone(),
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn table_cells_never_show_minus_zero_and_switch_to_scientific() {
+        assert_eq!(cell(-0.0), "0.000000");
+        assert_eq!(cell(0.25), "0.250000");
+        assert_eq!(cell(2.5e7), "2.50000e7");
+        assert_eq!(cell(-3e-6), "-3.00000e-6");
+    }
+}

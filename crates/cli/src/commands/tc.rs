@@ -1,0 +1,283 @@
+//! `rungs tc LATTICE [--levels a,b] [--supercell 2x2]`: the critical temperature at each
+//! level (default: all levels), beside a reference Tc.
+//!
+//! Levels are sorted by cluster size (`site`, `pair`, then the file's levels by their
+//! largest cluster) and computed in parallel (rayon); levels too large for the dense
+//! engine are searched afterwards on point-group orbits (uniform order only), one by one,
+//! each starting just above the lowest Tc of the smaller rungs. At each level Tc is where the
+//! paramagnetic solution stops being a minimum of the level's free energy (the smallest
+//! odd-sector Hessian eigenvalue reaches zero, see `rungs_solve::tc`); the critical mode
+//! says which order sets in. A level the engine refuses as too large is reported with
+//! its reason instead of failing the command, unless it is the only level asked for.
+//!
+//! The reference is the file's `reference:`, else the exact Tc of a closed form
+//! recognised from the bond structure (`rungs_reference::closed::ClosedForm`); it is
+//! taken from the lattice as written, before `--supercell`, since enlarging the cell does
+//! not change the model. `deviation = tc / reference − 1`.
+//!
+//! The caution notes shared with `rungs sweep` (what order is searched; levels beyond
+//! `site` are approximations, not bounds; finite Tc on a 1D lattice is an artefact) are
+//! here too: [`order_note`], [`NOT_BOUNDS_NOTE`], [`ONE_D_NOTE`].
+
+use std::time::Instant;
+
+use rayon::prelude::*;
+use rungs_lattice::{Lattice, LatticeError, Level};
+use rungs_reference::closed::ClosedForm;
+use rungs_solve::functional::check_size;
+use rungs_solve::{critical_temperature, CriticalPoint, SolveError, TcOptions};
+
+use crate::args::{Supercell, TcArgs};
+use crate::error::CliError;
+use crate::output::Output;
+use crate::progress::Progress;
+
+mod report;
+pub use report::TcReport;
+
+/// Footer note: which levels are variational bounds.
+pub const NOT_BOUNDS_NOTE: &str =
+    "cluster levels other than `site` are approximations, not bounds: their \
+     Tc and F may lie on either side of the exact values (`site` is the Bogoliubov variational \
+     bound on F, F_site ≥ F_exact).";
+
+/// Footer note for one-dimensional lattices.
+pub const ONE_D_NOTE: &str = "1D lattice: the exact model has no order at any T > 0 (Ising 1925, \
+     Z. Phys. 31, 253), so any finite Tc or spontaneous magnetisation here is an artefact of the \
+     approximation.";
+
+/// Row note for a level that orders on a 1D lattice.
+pub const ONE_D_ROW: &str = "artefact: no order at T > 0 in 1D";
+
+/// Row note for a level searched on point-group orbits.
+pub const ORBIT_ROW: &str = "big level, solved on point-group orbits: uniform order only";
+
+/// Run `rungs tc`.
+pub fn run(args: &TcArgs, out: &mut Output) -> Result<(), CliError> {
+    let primitive = super::load_lattice(&args.common.lattice)?;
+    let lattice = super::apply_supercell(primitive.clone(), args.supercell)?;
+    let names = sort_levels(
+        &lattice,
+        super::select_levels(&lattice, args.levels.as_deref())?,
+    )?;
+    let progress = Progress::new(names.len() as u64, "tc");
+    // Build every level, search the dense ones in parallel, then the big ones (solved on
+    // point-group orbits, slow) one by one, each starting just above the lowest Tc of
+    // the smaller cluster rungs (cluster Tc's of a ferromagnet fall as clusters grow).
+    let prepared = names
+        .par_iter()
+        .map(|name| prepare(&lattice, name))
+        .collect::<Result<Vec<_>, _>>()?;
+    let mut rows = prepared
+        .par_iter()
+        .map(|p| {
+            if p.big {
+                return Ok(None);
+            }
+            let row = search(&lattice, p, None);
+            progress.inc(1);
+            row.map(Some)
+        })
+        .collect::<Result<Vec<_>, CliError>>()?;
+    for (i, p) in prepared.iter().enumerate().filter(|(_, p)| p.big) {
+        let start_below = rows
+            .iter()
+            .flatten()
+            .filter(|r| r.max_cluster_sites >= 2 && r.max_cluster_sites < p.max_cluster_sites)
+            .filter_map(LevelTc::tc)
+            .reduce(f64::min)
+            .map(|t| 1.01 * t);
+        rows[i] = Some(search(&lattice, p, start_below)?);
+        progress.inc(1);
+    }
+    let levels: Vec<LevelTc> = rows.into_iter().flatten().collect();
+    progress.finish();
+    if let [only] = levels.as_slice() {
+        if let TcOutcome::Refused(reason) = &only.outcome {
+            return Err(CliError::NotConverged(reason.clone()));
+        }
+    }
+    out.emit(&TcReport::new(&primitive, &lattice, args.supercell, levels))
+}
+
+/// Levels in ladder order: `site`, `pair`, then the others by their largest cluster
+/// (ties keep the order given).
+pub fn sort_levels(lattice: &Lattice, names: Vec<String>) -> Result<Vec<String>, CliError> {
+    let mut keyed = names
+        .into_iter()
+        .map(|n| {
+            let rank = match n.as_str() {
+                "site" => 0,
+                "pair" => 1,
+                _ => 2,
+            };
+            Level::max_cluster_sites_of(lattice, &n).map(|sites| ((rank, sites), n))
+        })
+        .collect::<Result<Vec<_>, _>>()?;
+    keyed.sort_by_key(|(key, _)| *key);
+    Ok(keyed.into_iter().map(|(_, n)| n).collect())
+}
+
+/// What the Tc search gave at one level.
+#[derive(Debug, Clone)]
+pub enum TcOutcome {
+    /// The search ran; `tc` is `None` when no transition was found.
+    Searched(CriticalPoint),
+    /// The engine refused the level (too large); the reason says why.
+    Refused(String),
+}
+
+/// One level's row.
+#[derive(Debug, Clone)]
+pub struct LevelTc {
+    /// Level name.
+    pub level: String,
+    /// Sites of the largest maximal cluster.
+    pub max_cluster_sites: usize,
+    /// Wall-clock seconds: building the level and searching Tc.
+    pub seconds: f64,
+    /// Searched on point-group orbits (a big level): uniform order only.
+    pub orbit_reduced: bool,
+    /// The result.
+    pub outcome: TcOutcome,
+}
+
+impl LevelTc {
+    /// The critical temperature, when one was found.
+    pub fn tc(&self) -> Option<f64> {
+        match &self.outcome {
+            TcOutcome::Searched(cp) => cp.tc.filter(|t| t.is_finite()),
+            TcOutcome::Refused(_) => None,
+        }
+    }
+}
+
+/// A level built and ready for the Tc search.
+pub struct Prepared {
+    /// Level name.
+    pub name: String,
+    /// Sites of the largest maximal cluster.
+    pub max_cluster_sites: usize,
+    /// Seconds spent building it.
+    pub seconds: f64,
+    /// The level, or why it cannot be built (cluster over the site limit).
+    pub level: Result<Level, String>,
+    /// Whether it is too large for the dense engine, so that its Tc is searched on
+    /// point-group orbits (uniform order only, slow).
+    pub big: bool,
+}
+
+/// Build level `name` of `lattice`.
+pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, CliError> {
+    let start = Instant::now();
+    let max_cluster_sites = Level::max_cluster_sites_of(lattice, name)?;
+    let level = match Level::build(lattice, name) {
+        Ok(level) => Ok(level),
+        Err(e @ LatticeError::ClusterTooLarge { .. }) => Err(e.to_string()),
+        Err(e) => return Err(e.into()),
+    };
+    let big = level.as_ref().is_ok_and(|l| check_size(l).is_err());
+    Ok(Prepared {
+        name: name.to_string(),
+        max_cluster_sites,
+        seconds: start.elapsed().as_secs_f64(),
+        level,
+        big,
+    })
+}
+
+/// Find the Tc of a prepared level; `start_below` is where the search of a big level
+/// starts (`TcOptions::start_below`). A level the engine refuses as too large is a
+/// [`TcOutcome::Refused`]; any other failure is an error (exit status 1).
+pub fn search(
+    lattice: &Lattice,
+    p: &Prepared,
+    start_below: Option<f64>,
+) -> Result<LevelTc, CliError> {
+    let start = Instant::now();
+    let outcome = match &p.level {
+        Err(reason) => TcOutcome::Refused(reason.clone()),
+        Ok(level) => {
+            let options = TcOptions {
+                start_below,
+                ..TcOptions::default()
+            };
+            match critical_temperature(lattice, level, options) {
+                Ok(cp) => TcOutcome::Searched(cp),
+                Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
+                Err(e) => return Err(solve_error(e)),
+            }
+        }
+    };
+    Ok(LevelTc {
+        level: p.name.clone(),
+        max_cluster_sites: p.max_cluster_sites,
+        seconds: p.seconds + start.elapsed().as_secs_f64(),
+        orbit_reduced: p.big,
+        outcome,
+    })
+}
+
+/// An engine error as a command error: a bad temperature is bad input (exit status 2),
+/// everything else a computation that did not succeed (exit status 1).
+pub fn solve_error(e: SolveError) -> CliError {
+    match e {
+        SolveError::BadTemperature { .. } => CliError::Usage(e.to_string()),
+        e => CliError::NotConverged(e.to_string()),
+    }
+}
+
+/// The reference Tc of a lattice as written in its file: its `reference:`, else the exact
+/// Tc of the closed form recognised from its bonds; `(tc, source)`.
+pub fn reference_tc(lattice: &Lattice) -> Option<(f64, String)> {
+    if let Some(r) = lattice.reference() {
+        return Some((r.tc, r.source.clone()));
+    }
+    let form = ClosedForm::recognise(lattice)?;
+    let tc = form.tc().filter(|t| t.is_finite())?;
+    Some((
+        tc,
+        format!("exact Tc of the {} lattice: {}", form.name(), form.source()),
+    ))
+}
+
+/// The note saying which order a level can find: order that keeps the translations of
+/// the (possibly enlarged) cell. Stressed when couplings are antiferromagnetic or the
+/// lattice is frustrated, where the order that matters breaks those translations.
+pub fn order_note(
+    lattice: &Lattice,
+    supercell: Option<Supercell>,
+    has_supercell_option: bool,
+) -> String {
+    let n = lattice.sites_per_cell();
+    let antiferro = lattice.bonds().iter().any(|b| b.j < 0.0);
+    let frustrated = antiferro && !lattice.is_bipartite();
+    let cell = match supercell {
+        Some(sc) => format!(
+            "the {n}-site cell of --supercell {}",
+            sc.factors[..sc.given]
+                .iter()
+                .map(usize::to_string)
+                .collect::<Vec<_>>()
+                .join("x")
+        ),
+        None => format!("the {n}-site cell"),
+    };
+    let fix = if has_supercell_option {
+        "use --supercell for order that breaks them"
+    } else {
+        "for order that breaks them, describe a larger cell in the lattice file (or see `rungs tc --supercell`)"
+    };
+    let base =
+        format!("each level looks only for order that keeps the translations of {cell}; {fix}.");
+    if frustrated {
+        format!(
+            "IMPORTANT: antiferromagnetic couplings on a non-bipartite (frustrated) lattice: {base} \
+             The true ordering, if any, may need a larger cell than any given here."
+        )
+    } else if antiferro {
+        format!("IMPORTANT: the couplings are antiferromagnetic, so the order to expect is staggered: {base}")
+    } else {
+        base
+    }
+}

@@ -1,0 +1,217 @@
+//! Value lists for `--temps`, `--fields` and `--sizes`.
+//!
+//! One grammar for all three (CLI.md): one value `2.5`, a comma list `2.0,2.5,3.0`, or an
+//! inclusive range `start:stop:step` such as `1.5:3.5:0.01`. A range holds
+//! `start + k·step` for `k = 0, 1, …, n` with `n = round((stop − start)/step)` when that
+//! lands on `stop` within rounding (relative 1e-9 of a step), else `floor(…)`; the last
+//! point is then snapped to `stop` exactly, so `0.1:0.3:0.1` ends at `0.3`, not at
+//! `0.30000000000000004`. Points are computed as `start + k·step`, never by repeated
+//! addition, so rounding does not accumulate.
+//!
+//! The functions here are clap value parsers: their `Err(String)` becomes clap's
+//! "invalid value … for '--temps'" message (exit status 2).
+
+/// Longest list a range may produce.
+pub const MAX_POINTS: usize = 100_000;
+
+/// A parsed list of real numbers (temperatures or fields), in the order given.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RealList(pub Vec<f64>);
+
+/// A parsed list of torus sizes (linear extents in cells), in the order given.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct SizeList(pub Vec<usize>);
+
+/// Parse a list of real numbers (any finite sign): one value, a comma list, or a range.
+pub fn parse_reals(text: &str) -> Result<RealList, String> {
+    let text = text.trim();
+    if text.is_empty() {
+        return Err("empty list: give one value (2.5), a comma list (2.0,2.5,3.0) or a range start:stop:step (1.5:3.5:0.01)".into());
+    }
+    if text.contains(':') {
+        if text.contains(',') {
+            return Err(format!(
+                "`{text}` mixes a range and a comma list: give either start:stop:step or a,b,c"
+            ));
+        }
+        return parse_range(text).map(RealList);
+    }
+    text.split(',')
+        .map(|item| parse_number(item.trim()))
+        .collect::<Result<Vec<_>, _>>()
+        .map(RealList)
+}
+
+/// Parse temperatures: a real list whose every value is positive (k_B T in units of the
+/// couplings; T = 0 is a limit the solver does not evaluate).
+pub fn parse_temperatures(text: &str) -> Result<RealList, String> {
+    let list = parse_reals(text)?;
+    if let Some(t) = list.0.iter().find(|t| **t <= 0.0) {
+        return Err(format!(
+            "temperature {t} is not positive: temperatures must be > 0"
+        ));
+    }
+    Ok(list)
+}
+
+/// Parse torus sizes: positive integers as one value, a comma list, or an integer range
+/// `start:stop:step` (e.g. `8:32:8` gives 8, 16, 24, 32).
+pub fn parse_sizes(text: &str) -> Result<SizeList, String> {
+    let list = parse_reals(text)?;
+    let sizes = list
+        .0
+        .iter()
+        .map(|&x| {
+            if x < 1.0 || x.fract() != 0.0 {
+                Err(format!("size {x} is not a positive whole number of cells"))
+            } else if x > 1.0e6 {
+                Err(format!(
+                    "size {x} is too large: give at most 1000000 cells along each direction"
+                ))
+            } else {
+                Ok(x as usize)
+            }
+        })
+        .collect::<Result<Vec<_>, _>>()?;
+    Ok(SizeList(sizes))
+}
+
+/// One finite number.
+fn parse_number(item: &str) -> Result<f64, String> {
+    if item.is_empty() {
+        return Err("empty entry in the list: remove the extra comma".into());
+    }
+    let x: f64 = item
+        .parse()
+        .map_err(|_| format!("`{item}` is not a number"))?;
+    if !x.is_finite() {
+        return Err(format!("`{item}` is not a finite number"));
+    }
+    Ok(x)
+}
+
+/// An inclusive range `start:stop:step`, robust to rounding at the end (see module docs).
+fn parse_range(text: &str) -> Result<Vec<f64>, String> {
+    let parts: Vec<&str> = text.split(':').map(str::trim).collect();
+    let [start, stop, step] = parts[..] else {
+        return Err(format!(
+            "`{text}` is not a range: write start:stop:step with three numbers, e.g. 1.5:3.5:0.01"
+        ));
+    };
+    let (start, stop, step) = (
+        parse_number(start)?,
+        parse_number(stop)?,
+        parse_number(step)?,
+    );
+    if step <= 0.0 {
+        return Err(format!(
+            "range `{text}`: the step must be positive, got {step}"
+        ));
+    }
+    if start > stop {
+        return Err(format!(
+            "range `{text}`: start {start} is greater than stop {stop}; write the smaller value first"
+        ));
+    }
+    let too_many =
+        || format!("range `{text}` has more than {MAX_POINTS} points: use a larger step");
+    let ratio = (stop - start) / step;
+    if !ratio.is_finite() || ratio > 2.0 * MAX_POINTS as f64 {
+        return Err(too_many());
+    }
+    let nearest = ratio.round();
+    let (last, ends_on_stop) = if (ratio - nearest).abs() <= 1e-9 * ratio.max(1.0) {
+        (nearest as usize, true)
+    } else {
+        (ratio.floor() as usize, false)
+    };
+    if last >= MAX_POINTS {
+        return Err(too_many());
+    }
+    let mut points: Vec<f64> = (0..=last).map(|k| start + k as f64 * step).collect();
+    if ends_on_stop {
+        if let Some(end) = points.last_mut() {
+            *end = stop;
+        }
+    }
+    Ok(points)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn single_value_and_comma_list() {
+        assert_eq!(parse_reals("2.5").unwrap().0, vec![2.5]);
+        assert_eq!(
+            parse_reals(" 2.0, 2.5,3.0 ").unwrap().0,
+            vec![2.0, 2.5, 3.0]
+        );
+        assert_eq!(parse_reals("-0.1,0,0.1").unwrap().0, vec![-0.1, 0.0, 0.1]);
+    }
+
+    #[test]
+    fn range_is_inclusive_and_snaps_the_end() {
+        let r = parse_reals("0.1:0.3:0.1").unwrap().0;
+        assert_eq!(r.len(), 3);
+        assert_eq!(r[2], 0.3);
+        let r = parse_reals("1.5:3.5:0.01").unwrap().0;
+        assert_eq!(r.len(), 201);
+        assert_eq!(r[0], 1.5);
+        assert_eq!(r[200], 3.5);
+        assert!((r[100] - 2.5).abs() < 1e-12);
+        // A step that does not divide the interval stops before `stop`.
+        assert_eq!(parse_reals("1:2:0.3").unwrap().0.len(), 4);
+        // Exactly the largest list allowed.
+        assert_eq!(parse_reals("1:100000:1").unwrap().0.len(), MAX_POINTS);
+        // A one-point range.
+        assert_eq!(parse_reals("2:2:0.1").unwrap().0, vec![2.0]);
+    }
+
+    #[test]
+    fn bad_lists_are_refused_with_a_reason() {
+        for (text, says) in [
+            ("", "empty list"),
+            ("abc", "not a number"),
+            ("1,,2", "extra comma"),
+            ("NaN", "not a finite number"),
+            ("inf", "not a finite number"),
+            ("1:2", "not a range"),
+            ("1:2:3:4", "not a range"),
+            ("1:2:0", "step must be positive"),
+            ("1:2:-0.1", "step must be positive"),
+            ("3:1:0.1", "greater than stop"),
+            ("0:1:1e-6", "more than 100000 points"),
+            ("0:100000:1", "more than 100000 points"),
+            ("1:2:0.5,3", "mixes a range"),
+            ("nan:2:0.1", "not a finite number"),
+        ] {
+            let err = parse_reals(text).unwrap_err();
+            assert!(
+                err.contains(says),
+                "`{text}` gave `{err}`, expected `{says}`"
+            );
+        }
+    }
+
+    #[test]
+    fn temperatures_must_be_positive() {
+        assert!(parse_temperatures("0:1:0.5")
+            .unwrap_err()
+            .contains("not positive"));
+        assert!(parse_temperatures("-1").is_err());
+        assert_eq!(
+            parse_temperatures("1:2:0.5").unwrap().0,
+            vec![1.0, 1.5, 2.0]
+        );
+    }
+
+    #[test]
+    fn sizes_are_positive_integers() {
+        assert_eq!(parse_sizes("8,16,32").unwrap().0, vec![8, 16, 32]);
+        assert_eq!(parse_sizes("8:32:8").unwrap().0, vec![8, 16, 24, 32]);
+        assert!(parse_sizes("8.5").unwrap_err().contains("whole number"));
+        assert!(parse_sizes("0").is_err());
+    }
+}

@@ -1,0 +1,299 @@
+//! `rungs tc` end to end: the critical temperatures of the classic rungs on the square
+//! lattice against their published values, the chain (no transition at T > 0), Néel order
+//! of the antiferromagnet found with `--supercell`, a level too large for the engine, and
+//! the CSV/JSON shapes of the command contract.
+
+use assert_cmd::Command;
+use serde_json::Value;
+
+/// Onsager (1944), Phys. Rev. 65, 117: Tc = 2/ln(1 + √2) for J = 1 (the value in
+/// lattices/square.yaml).
+const ONSAGER_TC: f64 = 2.269185314213022;
+
+fn rungs() -> Command {
+    let mut cmd = Command::new(env!("CARGO_BIN_EXE_rungs"));
+    cmd.current_dir(env!("CARGO_MANIFEST_DIR"))
+        .env("CI", "true");
+    cmd
+}
+
+/// Run `args`, expect success, return standard output (checked for NaN/inf/panics).
+fn ok(args: &[&str]) -> String {
+    let out = rungs().args(args).output().unwrap();
+    let stdout = String::from_utf8_lossy(&out.stdout).to_string();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        out.status.success(),
+        "{args:?}: exit {:?}, stderr: {stderr}",
+        out.status.code()
+    );
+    assert!(!stderr.contains("panicked"), "{stderr}");
+    for bad in ["NaN", "nan", "inf"] {
+        assert!(!stdout.contains(bad), "{args:?} printed `{bad}`: {stdout}");
+    }
+    stdout
+}
+
+fn json(args: &[&str]) -> Value {
+    let text = ok(args);
+    serde_json::from_str(&text).unwrap_or_else(|e| panic!("{args:?}: not JSON ({e}): {text}"))
+}
+
+fn level<'a>(doc: &'a Value, name: &str) -> &'a Value {
+    doc["levels"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|l| l["level"] == name)
+        .unwrap_or_else(|| panic!("no level {name}"))
+}
+
+fn tc(doc: &Value, name: &str) -> f64 {
+    level(doc, name)["tc"]
+        .as_f64()
+        .unwrap_or_else(|| panic!("level {name} has no tc: {doc}"))
+}
+
+#[test]
+fn square_lattice_classic_rungs() {
+    let doc = json(&[
+        "tc",
+        "lattices/square.yaml",
+        "--levels",
+        "plaquette,pair,site",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(doc["lattice"], "square");
+    // Sorted by cluster size whatever the order asked for.
+    let names: Vec<&str> = doc["levels"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|l| l["level"].as_str().unwrap())
+        .collect();
+    assert_eq!(names, ["site", "pair", "plaquette"]);
+    let sites: Vec<u64> = doc["levels"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|l| l["max_cluster_sites"].as_u64().unwrap())
+        .collect();
+    assert_eq!(sites, [1, 2, 4]);
+    // Mean field: Tc = zJ = 4 (common practice).
+    assert!((tc(&doc, "site") - 4.0).abs() < 1e-7, "{doc}");
+    // Bethe (1935), Proc. R. Soc. A 150, 552: Tc = 2J / ln(z / (z − 2)) = 2/ln 2 for z = 4.
+    assert!((tc(&doc, "pair") - 2.0 / 2f64.ln()).abs() < 1e-7, "{doc}");
+    // Kikuchi (1951), Phys. Rev. 81, 988, square approximation: Tc ≈ 2.4257 (from memory,
+    // 4 digits).
+    assert!((tc(&doc, "plaquette") - 2.4257).abs() < 5e-4, "{doc}");
+    let reference = &doc["reference"];
+    assert_eq!(reference["tc"].as_f64().unwrap(), ONSAGER_TC);
+    assert!(reference["source"].as_str().unwrap().contains("Onsager"));
+    for l in doc["levels"].as_array().unwrap() {
+        let dev = l["deviation"].as_f64().unwrap();
+        assert!((dev - (l["tc"].as_f64().unwrap() / ONSAGER_TC - 1.0)).abs() < 1e-12);
+        // Every rung above the exact Tc here (none of them is a bound, but on the square
+        // lattice they all overestimate it).
+        assert!(dev > 0.0);
+        assert!(l["seconds"].as_f64().unwrap() >= 0.0);
+        assert_eq!(l["mode_kind"], "uniform");
+        assert!(l["note"].is_null());
+    }
+}
+
+#[test]
+fn table_shows_levels_deviation_and_caveats() {
+    let text = ok(&["tc", "lattices/square.yaml", "--levels", "site,pair"]);
+    assert!(
+        text.contains("deviation (%)") && text.contains("+76.275"),
+        "{text}"
+    );
+    assert!(text.contains("approximations, not bounds"), "{text}");
+    assert!(
+        text.contains("translations of the 1-site cell") && text.contains("--supercell"),
+        "{text}"
+    );
+}
+
+#[test]
+fn chain_has_no_transition_and_the_site_level_is_flagged() {
+    let doc = json(&[
+        "tc",
+        "lattices/chain.yaml",
+        "--levels",
+        "site,pair",
+        "--format",
+        "json",
+    ]);
+    assert!(doc["reference"].is_null(), "the chain has no Tc > 0: {doc}");
+    let pair = level(&doc, "pair");
+    // Ising (1925), Z. Phys. 31, 253: no order at T > 0; the pair level is exact in 1D.
+    assert!(pair["tc"].is_null(), "{doc}");
+    let note = pair["note"].as_str().unwrap();
+    assert!(
+        note.contains("no transition") && note.contains("T = "),
+        "{note}"
+    );
+    assert!(pair["searched_down_to"].as_f64().unwrap() < 0.5);
+    // Mean field on the chain: Tc = zJ = 2 (common practice), an artefact.
+    assert!((tc(&doc, "site") - 2.0).abs() < 1e-7);
+    assert!(level(&doc, "site")["note"]
+        .as_str()
+        .unwrap()
+        .contains("artefact"));
+
+    let table = ok(&["tc", "lattices/chain.yaml", "--levels", "site,pair"]);
+    let site_row = table
+        .lines()
+        .find(|l| l.trim_start().starts_with("site"))
+        .unwrap();
+    assert!(site_row.contains("artefact"), "{table}");
+    assert!(
+        table.contains("1D lattice") && table.contains("no order at any T > 0"),
+        "{table}"
+    );
+}
+
+#[test]
+fn antiferromagnet_orders_staggered_in_a_supercell() {
+    let dir = tempfile::tempdir().unwrap();
+    let square =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/lattices/square.yaml"))
+            .unwrap();
+    // Same lattice with J = -1, no reference and only the plaquette level.
+    let mut af: String = square
+        .lines()
+        .take_while(|l| !l.starts_with("clusters:"))
+        .map(|l| if l.trim() == "J: 1.0" { "  J: -1.0" } else { l })
+        .collect::<Vec<_>>()
+        .join("\n");
+    af.push_str(
+        "\nclusters:\n  plaquette:\n    - [[a, [0, 0]], [a, [1, 0]], [a, [0, 1]], [a, [1, 1]]]\n",
+    );
+    let path = dir.path().join("square_af.yaml");
+    std::fs::write(&path, af).unwrap();
+    let path = path.to_str().unwrap();
+
+    let ferro = json(&[
+        "tc",
+        "lattices/square.yaml",
+        "--levels",
+        "site,pair,plaquette",
+        "--format",
+        "json",
+    ]);
+    let doc = json(&[
+        "tc",
+        path,
+        "--supercell",
+        "2x2",
+        "--levels",
+        "site,pair,plaquette",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(doc["sites_per_cell"], 4);
+    assert_eq!(doc["supercell"], serde_json::json!([2, 2]));
+    for name in ["site", "pair", "plaquette"] {
+        // A bipartite lattice maps J → −J by flipping one sublattice: same Tc, Néel order
+        // (common practice).
+        assert!(
+            (tc(&doc, name) - tc(&ferro, name)).abs() < 1e-6,
+            "{name}: {doc}"
+        );
+        let l = level(&doc, name);
+        assert_eq!(l["mode_kind"], "staggered", "{name}");
+        let mode: Vec<f64> = l["mode"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_f64().unwrap())
+            .collect();
+        // Sub-cells (0,0), (1,0), (0,1), (1,1): checkerboard signs.
+        let expect = [1.0, -1.0, -1.0, 1.0];
+        assert!(
+            mode.iter().zip(expect).all(|(m, e)| (m - e).abs() < 1e-4),
+            "{name}: {mode:?}"
+        );
+    }
+    // The reference comes from the closed form recognised in the bonds.
+    assert_eq!(doc["reference"]["tc"].as_f64().unwrap(), ONSAGER_TC);
+    assert!(doc["reference"]["source"]
+        .as_str()
+        .unwrap()
+        .contains("Onsager"));
+
+    let table = ok(&["tc", path, "--levels", "site"]);
+    assert!(
+        table.contains("antiferromagnetic") && table.contains("--supercell"),
+        "{table}"
+    );
+}
+
+#[test]
+fn csv_columns_of_the_contract() {
+    let text = ok(&[
+        "tc",
+        "lattices/square.yaml",
+        "--levels",
+        "site,pair",
+        "--format",
+        "csv",
+    ]);
+    let lines: Vec<&str> = text.lines().collect();
+    assert_eq!(lines[0], "level,max_cluster_sites,tc,deviation,seconds");
+    assert_eq!(lines.len(), 3);
+    assert!(lines[1].starts_with("site,1,4,"), "{text}");
+    assert!(lines[2].starts_with("pair,2,2.88539008"), "{text}");
+}
+
+/// A lattice with almost no point symmetry (only inversion), so that its 4×4 block has
+/// too many orbit variables for the engine.
+const LOW_SYMMETRY: &str = "name: low-symmetry
+dimension: 2
+vectors: [[1.0, 0.0], [0.0, 1.0]]
+basis: [{name: a}]
+couplings: {J1: 1.0, J2: 0.7, J3: 0.3}
+bonds:
+  - {from: a, to: a, cell: [1, 0], coupling: J1}
+  - {from: a, to: a, cell: [0, 1], coupling: J2}
+  - {from: a, to: a, cell: [1, 1], coupling: J3}
+clusters:
+  block4:
+    block: [4, 4]
+";
+
+#[test]
+fn a_level_too_large_is_reported_not_fatal_unless_alone() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("low_symmetry.yaml");
+    std::fs::write(&path, LOW_SYMMETRY).unwrap();
+    let path = path.to_str().unwrap();
+    let doc = json(&["tc", path, "--levels", "pair,block4", "--format", "json"]);
+    let big = level(&doc, "block4");
+    assert!(big["tc"].is_null());
+    let note = big["note"].as_str().unwrap();
+    assert!(
+        note.contains("not computed") && note.contains("limit"),
+        "{big}"
+    );
+    assert!(level(&doc, "pair")["tc"].as_f64().is_some());
+    let table = ok(&["tc", path, "--levels", "pair,block4"]);
+    assert!(
+        table.contains("not computed") && table.contains("limit"),
+        "{table}"
+    );
+
+    let out = rungs()
+        .args(["tc", path, "--levels", "block4"])
+        .output()
+        .unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(1), "{stderr}");
+    assert!(
+        stderr.contains("block4") && stderr.contains("limit"),
+        "{stderr}"
+    );
+    assert!(out.stdout.is_empty());
+}
