@@ -49,6 +49,13 @@ fn det3(m: &[[i32; 3]; 3]) -> i32 {
         + m[0][2] * (m[1][0] * m[2][1] - m[1][1] * m[2][0])
 }
 
+/// A found operation as (permutation, shifts, rotation), ordered for deduplication.
+type FoundOp = (Vec<usize>, Vec<Cell>, [[i32; 3]; 3]);
+
+/// For each basis site after the first: the earlier site it is reached from by a bond,
+/// the bond's cell offset and its coupling bits.
+type Parents = [Option<(usize, Cell, u64)>];
+
 /// Every candidate R: entries in {−1, 0, 1} on the lattice's dimensions, identity on the
 /// unused ones, det ±1.
 fn candidate_rotations(d: usize) -> Vec<[[i32; 3]; 3]> {
@@ -56,13 +63,13 @@ fn candidate_rotations(d: usize) -> Vec<[[i32; 3]; 3]> {
     let mut out = Vec::new();
     for code in 0..3usize.pow(cells as u32) {
         let mut m = [[0i32; 3]; 3];
-        for k in d..3 {
-            m[k][k] = 1;
+        for (k, row) in m.iter_mut().enumerate().skip(d) {
+            row[k] = 1;
         }
         let mut c = code;
-        for i in 0..d {
-            for j in 0..d {
-                m[i][j] = (c % 3) as i32 - 1;
+        for row in m.iter_mut().take(d) {
+            for entry in row.iter_mut().take(d) {
+                *entry = (c % 3) as i32 - 1;
                 c /= 3;
             }
         }
@@ -127,7 +134,7 @@ pub fn point_group(lattice: &Lattice) -> Vec<SiteMap> {
                 .collect()
         })
         .collect();
-    let mut found: BTreeSet<(Vec<usize>, Vec<Cell>, [[i32; 3]; 3])> = BTreeSet::new();
+    let mut found: BTreeSet<FoundOp> = BTreeSet::new();
     for rot in candidate_rotations(lattice.dimension()) {
         for first in 0..nb {
             let mut map = SiteMap {
@@ -160,11 +167,11 @@ pub fn point_group(lattice: &Lattice) -> Vec<SiteMap> {
 fn search(
     k: usize,
     order: &[usize],
-    parent: &[Option<(usize, Cell, u64)>],
+    parent: &Parents,
     neighbours: &[Vec<(usize, Cell, u64)>],
     bonds: &HashMap<Cluster, u64>,
     map: &mut SiteMap,
-    found: &mut BTreeSet<(Vec<usize>, Vec<Cell>, [[i32; 3]; 3])>,
+    found: &mut BTreeSet<FoundOp>,
 ) {
     if k == order.len() {
         // Every bond must land on a bond with the same coupling.
@@ -239,13 +246,13 @@ pub fn variable_orbits(level: &Level, ops: &[SiteMap]) -> Vec<usize> {
     let mut id = vec![usize::MAX; n];
     let mut next = 0;
     let mut out = vec![0; n];
-    for v in 0..n {
+    for (v, slot) in out.iter_mut().enumerate() {
         let r = find(&mut root, v);
         if id[r] == usize::MAX {
             id[r] = next;
             next += 1;
         }
-        out[v] = id[r];
+        *slot = id[r];
     }
     out
 }

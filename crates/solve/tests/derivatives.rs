@@ -61,8 +61,8 @@ fn solved_correlations_are_a_distribution() {
             let n = r.cluster.len();
             let mut p = vec![0.0; 1 << n];
             p[0] = 1.0;
-            for mask in 1..(1 << n) {
-                p[mask] = st.solution.x[r.subset_vars[mask] as usize];
+            for (slot, &v) in p.iter_mut().zip(&r.subset_vars).skip(1) {
+                *slot = st.solution.x[v as usize];
             }
             rungs_solve::wht::wht(&mut p);
             let p: Vec<f64> = p.iter().map(|q| q / (1u64 << n) as f64).collect();
