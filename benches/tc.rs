@@ -9,7 +9,9 @@ use rungs::lattice::{Lattice, Level};
 use rungs::solve::{critical_temperature, TcOptions};
 
 fn load(stem: &str) -> Lattice {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("lattices").join(format!("{stem}.yaml"));
+    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("lattices")
+        .join(format!("{stem}.yaml"));
     match Lattice::from_file(&path) {
         Ok(l) => l,
         Err(e) => panic!("benchmark lattice {stem}: {e}"),
@@ -19,7 +21,11 @@ fn load(stem: &str) -> Lattice {
 fn bench_tc(c: &mut Criterion) {
     let mut group = c.benchmark_group("tc");
     group.sample_size(20);
-    for (stem, level) in [("square", "plaquette"), ("simple_cubic", "cube"), ("square", "block3")] {
+    for (stem, level) in [
+        ("square", "plaquette"),
+        ("simple_cubic", "cube"),
+        ("square", "block3"),
+    ] {
         let lattice = load(stem);
         group.bench_function(format!("{stem}/{level}"), |b| {
             b.iter(|| {

@@ -4,8 +4,16 @@ use assert_cmd::Command;
 use serde_json::Value;
 
 fn mc(args: &[&str]) -> Value {
-    let out = Command::cargo_bin("rungs").unwrap().args(args).output().unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let out = Command::cargo_bin("rungs")
+        .unwrap()
+        .args(args)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     serde_json::from_slice(&out.stdout).unwrap()
 }
 
@@ -78,7 +86,16 @@ fn same_seed_same_numbers() {
 fn too_few_sweeps_is_bad_input() {
     let out = Command::cargo_bin("rungs")
         .unwrap()
-        .args(["mc", "lattices/square.yaml", "--sizes", "4", "--temps", "2.0", "--sweeps", "3"])
+        .args([
+            "mc",
+            "lattices/square.yaml",
+            "--sizes",
+            "4",
+            "--temps",
+            "2.0",
+            "--sweeps",
+            "3",
+        ])
         .output()
         .unwrap();
     assert_eq!(out.status.code(), Some(2));

@@ -7,13 +7,22 @@ use rungs_lattice::{Lattice, Level};
 use rungs_solve::{critical_temperature, TcOptions};
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
-    let lattice = Lattice::from_file(&Path::new(env!("CARGO_MANIFEST_DIR")).join("../../lattices/square.yaml"))?;
+    let lattice = Lattice::from_file(
+        &Path::new(env!("CARGO_MANIFEST_DIR")).join("../../lattices/square.yaml"),
+    )?;
     let t0 = Instant::now();
-    let b3 = critical_temperature(&lattice, &Level::build(&lattice, "block3")?, TcOptions::default())?;
+    let b3 = critical_temperature(
+        &lattice,
+        &Level::build(&lattice, "block3")?,
+        TcOptions::default(),
+    )?;
     let t1 = Instant::now();
     let lv = Level::build(&lattice, "block4")?;
     let t2 = Instant::now();
-    let options = TcOptions { start_below: b3.tc, ..TcOptions::default() };
+    let options = TcOptions {
+        start_below: b3.tc,
+        ..TcOptions::default()
+    };
     let cp = critical_temperature(&lattice, &lv, options)?;
     println!(
         "block3 {:?} in {:.3} s; block4 build {:.2} s; block4 tc {:?} amplitude {:?} in {:.1} s",

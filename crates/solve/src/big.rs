@@ -81,7 +81,10 @@ impl SymmetricSolver {
             .active_regions()
             .map(|r| {
                 let n = r.cluster.len();
-                let perms: Vec<Vec<usize>> = ops.iter().filter_map(|op| site_permutation(&r.cluster, op)).collect();
+                let perms: Vec<Vec<usize>> = ops
+                    .iter()
+                    .filter_map(|op| site_permutation(&r.cluster, op))
+                    .collect();
                 let size = 1usize << n;
                 let mut seen = vec![false; size];
                 let mut reps = Vec::new();
@@ -104,10 +107,20 @@ impl SymmetricSolver {
                     }
                     reps.push((m as u32, count));
                 }
-                RegionPlan { n, coefficient: r.coefficient as f64, vars: r.subset_vars.clone(), reps }
+                RegionPlan {
+                    n,
+                    coefficient: r.coefficient as f64,
+                    vars: r.subset_vars.clone(),
+                    reps,
+                }
             })
             .collect();
-        SymmetricSolver { plans, h: None, factor: None, scratch: Vec::new() }
+        SymmetricSolver {
+            plans,
+            h: None,
+            factor: None,
+            scratch: Vec::new(),
+        }
     }
 
     /// The reduced Hessian of `f` (on the reduced level) at `x`, on `block`.
@@ -187,7 +200,11 @@ impl HessianSolver for SymmetricSolver {
         self.factor.is_some()
     }
     fn scale(&self) -> f64 {
-        self.h.as_ref().map_or(1.0, |h| (0..h.nrows()).map(|i| h[(i, i)].abs()).fold(1e-300, f64::max))
+        self.h.as_ref().map_or(1.0, |h| {
+            (0..h.nrows())
+                .map(|i| h[(i, i)].abs())
+                .fold(1e-300, f64::max)
+        })
     }
     fn solve_shifted(&mut self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>> {
         let mut b = Mat::from_fn(rhs.len(), 1, |i, _| rhs[i]);
@@ -236,14 +253,24 @@ impl BigProbe<'_> {
     fn g_with_response(&self, t: f64) -> Result<(f64, bool, Vec<f64>), SolveError> {
         let f = self.f.at(t, 0.0);
         let start = self.warm.borrow().clone();
-        let start = if f.feasible(&start) { start } else { product_state(&f, 0.0) };
+        let start = if f.feasible(&start) {
+            start
+        } else {
+            product_state(&f, 0.0)
+        };
         let mut solver = self.solver.borrow_mut();
-        let opts = NewtonOptions { tolerance: 1e-10, max_iterations: 100, chord: true };
+        let opts = NewtonOptions {
+            tolerance: 1e-10,
+            max_iterations: 100,
+            chord: true,
+        };
         let sol = minimise_with(&f, start, &self.even, opts, &mut *solver)?;
-        let h = solver.hessian(&f, &sol.x, &self.odd).ok_or_else(|| SolveError::TcSearch {
-            level: f.level().name.clone(),
-            detail: format!("paramagnetic solution at T = {t} left the feasible region"),
-        })?;
+        let h = solver
+            .hessian(&f, &sol.x, &self.odd)
+            .ok_or_else(|| SolveError::TcSearch {
+                level: f.level().name.clone(),
+                detail: format!("paramagnetic solution at T = {t} left the feasible region"),
+            })?;
         *self.warm.borrow_mut() = sol.x;
         let rhs = Mat::from_fn(self.b.len(), 1, |i, _| self.b[i]);
         let (y, pd) = match h.llt(Side::Lower) {
@@ -331,7 +358,10 @@ pub fn critical_temperature_big(
         grow += 1;
     }
     if !pd {
-        return Err(SolveError::TcSearch { level: level.name.clone(), detail: format!("no stable paramagnet up to T = {t_hi}") });
+        return Err(SolveError::TcSearch {
+            level: level.name.clone(),
+            detail: format!("no stable paramagnet up to T = {t_hi}"),
+        });
     }
     // Step down along the secant of g until H_odd stops being positive definite.
     let t_min = scale * options.lowest_fraction;
@@ -371,11 +401,21 @@ pub fn critical_temperature_big(
     };
     // Brent on g over the bracket (its ends come from the cache).
     let solver = BrentRoot::new(t_lo, t_hi, options.relative_tolerance * t_hi);
-    let tc = match Executor::new(GRoot(&probe), solver).configure(|s| s.max_iters(100)).run() {
+    let tc = match Executor::new(GRoot(&probe), solver)
+        .configure(|s| s.max_iters(100))
+        .run()
+    {
         Ok(r) => r.state.best_param.unwrap_or(0.5 * (t_lo + t_hi)),
         Err(e) => {
             let name = level.name.clone();
-            return Err(probe.error.borrow_mut().take().unwrap_or(SolveError::TcSearch { level: name, detail: e.to_string() }));
+            return Err(probe
+                .error
+                .borrow_mut()
+                .take()
+                .unwrap_or(SolveError::TcSearch {
+                    level: name,
+                    detail: e.to_string(),
+                }));
         }
     };
     // Amplitude: χ = bᵀH⁻¹b / N_b = 1/(N_b g), g ≈ g'(T − Tc) ⇒ χ̄ = 1/(N_b g'(Tc)).
@@ -388,7 +428,11 @@ pub fn critical_temperature_big(
     let amplitude = (slope > 0.0).then(|| 1.0 / (nb as f64 * slope));
     // Just above Tc the response H⁻¹e is dominated by the critical mode; its value on
     // a site's orbit is that site's component.
-    let components: Vec<f64> = red.site_vars.iter().map(|&v| response[probe.odd.pos[v]]).collect();
+    let components: Vec<f64> = red
+        .site_vars
+        .iter()
+        .map(|&v| response[probe.odd.pos[v]])
+        .collect();
     let (mode, kind) = crate::tc::classify(&components);
     Ok(CriticalPoint {
         level: level.name.clone(),

@@ -84,7 +84,9 @@ impl HessianSolver for DenseSolver {
         self.h.is_some()
     }
     fn scale(&self) -> f64 {
-        self.h.as_ref().map_or(1.0, |h| h.diagonal().amax().max(1e-300))
+        self.h
+            .as_ref()
+            .map_or(1.0, |h| h.diagonal().amax().max(1e-300))
     }
     fn solve_shifted(&mut self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>> {
         let mut m = self.h.clone()?;
@@ -92,13 +94,22 @@ impl HessianSolver for DenseSolver {
             m[(i, i)] += mu;
         }
         let chol = m.cholesky()?;
-        Some(chol.solve(&DVector::from_column_slice(rhs)).as_slice().to_vec())
+        Some(
+            chol.solve(&DVector::from_column_slice(rhs))
+                .as_slice()
+                .to_vec(),
+        )
     }
 }
 
 /// Minimise `f` over the variables of `block`, the others held at their values in `x0`,
 /// with dense nalgebra Hessians.
-pub fn minimise(f: &Functional, x0: Vec<f64>, block: &Block, options: NewtonOptions) -> Result<Solution, SolveError> {
+pub fn minimise(
+    f: &Functional,
+    x0: Vec<f64>,
+    block: &Block,
+    options: NewtonOptions,
+) -> Result<Solution, SolveError> {
     minimise_with(f, x0, block, options, &mut DenseSolver::default())
 }
 
@@ -131,9 +142,17 @@ pub fn minimise_with(
             stalled += 1;
         }
         if stalled >= 3 && gn < STAGNATION_FLOOR {
-            return Ok(Solution { x, evaluation: ev, iterations: it });
+            return Ok(Solution {
+                x,
+                evaluation: ev,
+                iterations: it,
+            });
         }
-        let last_ratio = if last_gn.is_finite() { gn / last_gn } else { 0.0 };
+        let last_ratio = if last_gn.is_finite() {
+            gn / last_gn
+        } else {
+            0.0
+        };
         last_gn = gn;
         if gn <= options.tolerance {
             return Ok(Solution {

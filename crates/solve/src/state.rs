@@ -95,21 +95,34 @@ pub fn equilibrium(
     };
     // Continuing an ordered branch (a sweep below Tc): the ordered minimum first. Newton
     // from an ordered warm start reaches m = 0 by itself once the order is gone.
-    let ordered_warm = feasible_warm.as_ref().filter(|w| magnetization(level, w).abs() > 1e-6).cloned();
+    let ordered_warm = feasible_warm
+        .as_ref()
+        .filter(|w| magnetization(level, w).abs() > 1e-6)
+        .cloned();
     if let Some(mut start) = ordered_warm.clone() {
         if magnetization(level, &start) < 0.0 {
             flip(level, &mut start);
         }
         if let Ok(ord) = minimise(&f, start, &all, opts) {
             if magnetization(level, &ord.x) > 1e-6 {
-                return Ok(State { t, h, solution: ord, branch: Branch::Ordered });
+                return Ok(State {
+                    t,
+                    h,
+                    solution: ord,
+                    branch: Branch::Ordered,
+                });
             }
         }
     }
     let para = minimise(&f, para_start, &even, opts);
     if let Ok(para) = &para {
         if odd_sector_stable(&f, &para.x) {
-            return Ok(State { t, h, solution: para.clone(), branch: Branch::Paramagnetic });
+            return Ok(State {
+                t,
+                h,
+                solution: para.clone(),
+                branch: Branch::Paramagnetic,
+            });
         }
     }
     // The paramagnet is unstable (or could not be followed): the ordered branch.
@@ -123,15 +136,26 @@ pub fn equilibrium(
         Err(e) => return Err(para.err().unwrap_or(e)),
     };
     if let Ok(para) = &para {
-        if ord.evaluation.free_energy >= para.evaluation.free_energy || magnetization(level, &ord.x).abs() <= 1e-6 {
-            return Err(SolveError::NoStableState { level: level.name.clone(), t, h });
+        if ord.evaluation.free_energy >= para.evaluation.free_energy
+            || magnetization(level, &ord.x).abs() <= 1e-6
+        {
+            return Err(SolveError::NoStableState {
+                level: level.name.clone(),
+                t,
+                h,
+            });
         }
     }
     if magnetization(level, &ord.x) < 0.0 {
         flip(level, &mut ord.x);
         ord = minimise(&f, ord.x, &all, opts)?;
     }
-    Ok(State { t, h, solution: ord, branch: Branch::Ordered })
+    Ok(State {
+        t,
+        h,
+        solution: ord,
+        branch: Branch::Ordered,
+    })
 }
 
 /// Spin reversal: every odd correlation changes sign.

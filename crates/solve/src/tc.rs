@@ -213,7 +213,9 @@ pub fn critical_temperature(
         let norm: Vec<f64> = size.iter().map(|&d| 1.0 / (d as f64).sqrt()).collect();
         // Any failure of the symmetric search (no Tc, or a paramagnet that cannot be
         // followed because a less symmetric order sets in first) defers to the full one.
-        if let Ok((sym @ CriticalPoint { tc: Some(tc), .. }, y)) = search(scale, &reduced, norm, options) {
+        if let Ok((sym @ CriticalPoint { tc: Some(tc), .. }, y)) =
+            search(scale, &reduced, norm, options)
+        {
             let t_check = tc * (1.0 + 1e-6);
             let x: Vec<f64> = orbit_of.iter().map(|&o| y[o]).collect();
             let f = Functional::new(level, t_check, 0.0);

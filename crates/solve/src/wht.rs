@@ -31,7 +31,7 @@ mod tests {
         let f: Vec<f64> = (0..16).map(|i| (i as f64 * 0.37).sin()).collect();
         let mut g = f.clone();
         wht(&mut g);
-        for s in 0..16usize {
+        for (s, &gs) in g.iter().enumerate() {
             let direct: f64 = (0..16usize)
                 .map(|c| {
                     f[c] * if (c & s).count_ones() % 2 == 0 {
@@ -41,7 +41,7 @@ mod tests {
                     }
                 })
                 .sum();
-            assert!((g[s] - direct).abs() < 1e-12);
+            assert!((gs - direct).abs() < 1e-12);
         }
         wht(&mut g);
         for (a, b) in g.iter().zip(&f) {

@@ -200,10 +200,20 @@ fn square_block4_lies_between_the_exact_tc_and_the_3x3_block() {
     // Onsager (1944): the exact Tc bounds every cluster level from below; the 4×4 block
     // must improve on the 3×3 block (monotone ladder).
     let l = shipped("square");
-    let b3 = critical_temperature(&l, &level(&l, "block3"), TcOptions::default()).unwrap().tc.unwrap();
-    let options = TcOptions { start_below: Some(b3), ..TcOptions::default() };
+    let b3 = critical_temperature(&l, &level(&l, "block3"), TcOptions::default())
+        .unwrap()
+        .tc
+        .unwrap();
+    let options = TcOptions {
+        start_below: Some(b3),
+        ..TcOptions::default()
+    };
     let cp = critical_temperature(&l, &level(&l, "block4"), options).unwrap();
     let b4 = cp.tc.unwrap();
-    assert!(onsager_tc() < b4 && b4 < b3, "{} < {b4} < {b3}", onsager_tc());
+    assert!(
+        onsager_tc() < b4 && b4 < b3,
+        "{} < {b4} < {b3}",
+        onsager_tc()
+    );
     assert!(cp.amplitude.unwrap() > 0.0);
 }

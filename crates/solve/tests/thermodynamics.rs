@@ -184,14 +184,31 @@ fn plaquette_sweeps_through_tc_both_ways() {
         for o in &obs {
             let tc = 2.4256657;
             if o.temperature < tc - 0.01 {
-                assert!(o.magnetization > 0.05, "T={} m={}", o.temperature, o.magnetization);
+                assert!(
+                    o.magnetization > 0.05,
+                    "T={} m={}",
+                    o.temperature,
+                    o.magnetization
+                );
             } else if o.temperature > tc + 0.01 {
-                assert!(o.magnetization.abs() < 1e-8, "T={} m={}", o.temperature, o.magnetization);
+                assert!(
+                    o.magnetization.abs() < 1e-8,
+                    "T={} m={}",
+                    o.temperature,
+                    o.magnetization
+                );
             }
         }
         let k = 1.0f64;
         let yang = (1.0 - (2.0 * k).sinh().powi(-4)).powf(0.125);
-        let at1 = obs.iter().find(|o| (o.temperature - 1.0).abs() < 1e-12).unwrap();
-        assert!((at1.magnetization - yang).abs() < 1e-3, "{} vs {yang}", at1.magnetization);
+        let at1 = obs
+            .iter()
+            .find(|o| (o.temperature - 1.0).abs() < 1e-12)
+            .unwrap();
+        assert!(
+            (at1.magnetization - yang).abs() < 1e-3,
+            "{} vs {yang}",
+            at1.magnetization
+        );
     }
 }

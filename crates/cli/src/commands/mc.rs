@@ -27,11 +27,19 @@ pub fn run(args: &McArgs, out: &mut Output) -> Result<(), CliError> {
         ..McConfig::default()
     };
     let points = args.sizes.0.len() * config.temperatures.len();
-    let progress = Progress::new((points * (config.sweeps + config.warmup)) as u64, "Monte Carlo sweeps");
+    let progress = Progress::new(
+        (points * (config.sweeps + config.warmup)) as u64,
+        "Monte Carlo sweeps",
+    );
     let observer = progress.observer();
-    let result = montecarlo::run(&lattice, &args.sizes.0, &config, Some(&observer)).map_err(mc_error)?;
+    let result =
+        montecarlo::run(&lattice, &args.sizes.0, &config, Some(&observer)).map_err(mc_error)?;
     progress.finish();
-    out.emit(&McReport { lattice: lattice.name().to_string(), dimension: lattice.dimension(), result })
+    out.emit(&McReport {
+        lattice: lattice.name().to_string(),
+        dimension: lattice.dimension(),
+        result,
+    })
 }
 
 /// Monte Carlo errors are all about the request (sizes, temperatures, sweeps): exit 2.
@@ -115,7 +123,18 @@ impl Report for McReport {
 
     fn table(&self) -> TextDoc {
         let pm = |v: f64, e: f64| format!("{} ± {}", fmt4(v), fmt_err(e));
-        let mut grid = Grid::new(["L", "sites", "T", "energy", "|m|", "Binder U4", "C", "χ", "update", "s"]);
+        let mut grid = Grid::new([
+            "L",
+            "sites",
+            "T",
+            "energy",
+            "|m|",
+            "Binder U4",
+            "C",
+            "χ",
+            "update",
+            "s",
+        ]);
         for p in &self.result.points {
             grid.push([
                 p.size.to_string(),
@@ -130,7 +149,10 @@ impl Report for McReport {
                 format!("{:.2}", p.seconds),
             ]);
         }
-        let mut blocks = vec![Block::Table(grid), Block::Heading("Critical temperature".into())];
+        let mut blocks = vec![
+            Block::Table(grid),
+            Block::Heading("Critical temperature".into()),
+        ];
         blocks.push(Block::Line(match &self.result.tc_estimate {
             Some(t) => format!("Binder-cumulant crossing: Tc = {} ± {}", fmt4(t.tc), fmt_err(t.tc_error)),
             None => "no Binder-cumulant crossing between the temperatures given: widen --temps around Tc or add sizes".into(),
@@ -142,7 +164,11 @@ impl Report for McReport {
         if self.dimension == 1 {
             notes.push("a one-dimensional lattice has no order at T > 0: U4 curves do not cross at a finite Tc".into());
         }
-        TextDoc { title: format!("Monte Carlo on `{}`", self.lattice), blocks, notes }
+        TextDoc {
+            title: format!("Monte Carlo on `{}`", self.lattice),
+            blocks,
+            notes,
+        }
     }
 }
 

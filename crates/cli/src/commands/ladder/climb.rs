@@ -281,9 +281,9 @@ fn reject_runaway(v: &[Rung], out: &mut Vec<Extrapolated>, notes: &mut Vec<Strin
         if runaway {
             notes.push(format!(
                 "coherent-anomaly extrapolation rejected: the fit ran to the edge of its search window \
-                 (Tc* = {}, far below every rung): the amplitudes χ̄ grow too slowly as Tc falls to follow \
+                 (Tc* = {:.3e}, far below every rung): the amplitudes χ̄ grow too slowly as Tc falls to follow \
                  χ̄ ∝ (Tc_n − Tc*)^(−ψ); larger clusters are needed",
-                format!("{:.3e}", e.tc)
+                e.tc
             ));
         }
         !runaway
@@ -414,7 +414,7 @@ mod tests {
         // A tree-like block repeating the pair's Tc adds nothing: left out, named.
         let rungs = [
             rung("pair", 2, Some(2.9), Some(1.4)),
-            rung("chain4", 4, Some(2.9), Some(1.4)),
+            rung("chain4", 3, Some(2.9), Some(1.4)),
             rung("plaquette", 4, Some(2.5), Some(3.0)),
         ];
         let mut notes = Vec::new();
