@@ -4,11 +4,14 @@ use super::*;
 use crate::level::Level;
 use crate::model::{Bond, LevelSpec, Site};
 
+/// One cluster shape: (basis site, cell offset) per site.
+type Shape = Vec<(usize, Cell)>;
+
 fn lattice(
     dim: usize,
     nb: usize,
     bonds: &[(usize, usize, Cell, f64)],
-    levels: &[(&str, Vec<Vec<(usize, Cell)>>)],
+    levels: &[(&str, Vec<Shape>)],
 ) -> Lattice {
     let mut vectors = vec![[0.0; 3]; dim];
     for (k, v) in vectors.iter_mut().enumerate() {
