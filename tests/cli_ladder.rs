@@ -487,3 +487,33 @@ fn csv_and_table_shapes() {
         assert!(table.contains(words), "table lacks `{words}`:\n{table}");
     }
 }
+
+/// Long validation (a minute or two in release; documented in docs/validation.md):
+/// `cargo test --release --test cli_ladder -- --ignored`.
+/// The full square ladder with the 4×4 block: the coherent-anomaly Tc* lies within 1 %
+/// of Onsager's 2.269185 (Onsager 1944), and γ moves toward the exact 7/4 (Onsager/Yang;
+/// Wu, McCoy, Tracy & Barouch 1976) when the 4×4 block joins pair, plaquette and 3×3.
+#[test]
+#[ignore]
+fn square_ladder_with_the_4x4_block_converges() {
+    let full = ladder("lattices/square.yaml", &[]);
+    let cam = extrapolation(&full, "coherent-anomaly").unwrap_or_else(|| panic!("{full}"));
+    let tc_star = cam["tc"].as_f64().unwrap();
+    assert!((tc_star / ONSAGER_TC - 1.0).abs() < 0.01, "{cam}");
+    let gamma4 = cam["gamma"].as_f64().unwrap();
+
+    let text =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/lattices/square.yaml"))
+            .unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("square_to_block3.yaml");
+    std::fs::write(&path, text.replace("  block4:\n    block: [4, 4]\n", "")).unwrap();
+    let short = ladder(path.to_str().unwrap(), &[]);
+    let gamma3 = extrapolation(&short, "coherent-anomaly").unwrap()["gamma"]
+        .as_f64()
+        .unwrap();
+    assert!(
+        (gamma4 - 1.75).abs() < (gamma3 - 1.75).abs(),
+        "γ with 4×4: {gamma4}, without: {gamma3}"
+    );
+}
