@@ -3,7 +3,9 @@
 //! extrapolations (and the notes that replace them when the ladder is too short), the
 //! chain's 1D caution, `--up-to`, `--mc`, and the `--plot` figure.
 
-use assert_cmd::Command;
+mod common;
+
+use common::ok;
 use serde_json::Value;
 
 /// Onsager (1944), Phys. Rev. 65, 117: Tc = 2/ln(1 + √2) for J = 1.
@@ -14,30 +16,6 @@ const TRIANGULAR_TC: f64 = 3.64095690650735;
 
 /// Ferrenberg, Xu & Landau (2018), Phys. Rev. E 97, 043301: simple cubic Kc = 0.221654626(5).
 const CUBIC_KC: f64 = 0.221654626;
-
-fn rungs() -> Command {
-    let mut cmd = Command::new(env!("CARGO_BIN_EXE_rungs"));
-    cmd.current_dir(env!("CARGO_MANIFEST_DIR"))
-        .env("CI", "true");
-    cmd
-}
-
-/// Run `args`, expect exit 0, return standard output (checked for NaN/inf/panics).
-fn ok(args: &[&str]) -> String {
-    let out = rungs().args(args).output().unwrap();
-    let stdout = String::from_utf8_lossy(&out.stdout).to_string();
-    let stderr = String::from_utf8_lossy(&out.stderr);
-    assert!(
-        out.status.success(),
-        "{args:?}: exit {:?}, stderr: {stderr}",
-        out.status.code()
-    );
-    assert!(!stderr.contains("panicked"), "{stderr}");
-    for bad in ["NaN", "nan", "inf"] {
-        assert!(!stdout.contains(bad), "{args:?} printed `{bad}`: {stdout}");
-    }
-    stdout
-}
 
 fn ladder(lattice: &str, extra: &[&str]) -> Value {
     let mut args = vec!["ladder", lattice, "--format", "json"];

@@ -6,35 +6,13 @@
 
 use std::f64::consts::PI;
 
-use assert_cmd::Command;
+mod common;
+
+use common::ok;
 use serde_json::Value;
 
 const HEADER: &str =
     "level,temperature,field,magnetization,energy,free_energy,entropy,specific_heat,susceptibility";
-
-fn rungs() -> Command {
-    let mut cmd = Command::new(env!("CARGO_BIN_EXE_rungs"));
-    cmd.current_dir(env!("CARGO_MANIFEST_DIR"))
-        .env("CI", "true");
-    cmd
-}
-
-/// Run `args`, expect success, return standard output (checked for NaN/inf/panics).
-fn ok(args: &[&str]) -> String {
-    let out = rungs().args(args).output().unwrap();
-    let stdout = String::from_utf8_lossy(&out.stdout).to_string();
-    let stderr = String::from_utf8_lossy(&out.stderr);
-    assert!(
-        out.status.success(),
-        "{args:?}: exit {:?}, stderr: {stderr}",
-        out.status.code()
-    );
-    assert!(!stderr.contains("panicked"), "{stderr}");
-    for bad in ["NaN", "nan", "inf"] {
-        assert!(!stdout.contains(bad), "{args:?} printed `{bad}`: {stdout}");
-    }
-    stdout
-}
 
 /// CSV rows as (level, values of the other columns).
 fn rows(csv: &str) -> Vec<(String, Vec<f64>)> {

@@ -3,36 +3,14 @@
 //! of the antiferromagnet found with `--supercell`, a level too large for the engine, and
 //! the CSV/JSON shapes of the command contract.
 
-use assert_cmd::Command;
+mod common;
+
+use common::{ok, rungs};
 use serde_json::Value;
 
 /// Onsager (1944), Phys. Rev. 65, 117: Tc = 2/ln(1 + √2) for J = 1 (the value in
 /// lattices/square.yaml).
 const ONSAGER_TC: f64 = 2.269185314213022;
-
-fn rungs() -> Command {
-    let mut cmd = Command::new(env!("CARGO_BIN_EXE_rungs"));
-    cmd.current_dir(env!("CARGO_MANIFEST_DIR"))
-        .env("CI", "true");
-    cmd
-}
-
-/// Run `args`, expect success, return standard output (checked for NaN/inf/panics).
-fn ok(args: &[&str]) -> String {
-    let out = rungs().args(args).output().unwrap();
-    let stdout = String::from_utf8_lossy(&out.stdout).to_string();
-    let stderr = String::from_utf8_lossy(&out.stderr);
-    assert!(
-        out.status.success(),
-        "{args:?}: exit {:?}, stderr: {stderr}",
-        out.status.code()
-    );
-    assert!(!stderr.contains("panicked"), "{stderr}");
-    for bad in ["NaN", "nan", "inf"] {
-        assert!(!stdout.contains(bad), "{args:?} printed `{bad}`: {stdout}");
-    }
-    stdout
-}
 
 fn json(args: &[&str]) -> Value {
     let text = ok(args);
