@@ -24,6 +24,8 @@ pub mod level;
 pub mod model;
 pub mod spec;
 pub mod symmetry;
+#[cfg(test)]
+mod testutil;
 pub mod torus;
 
 pub use cluster::Cluster;

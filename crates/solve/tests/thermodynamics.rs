@@ -182,6 +182,8 @@ fn plaquette_sweeps_through_tc_both_ways() {
     for temps in [up, down] {
         let obs = rungs_solve::sweep(&lv, &temps, &[0.0], &|| {}).unwrap();
         for o in &obs {
+            // The plaquette level's own Tc (rungs, `square_plaquette_kikuchi` in
+            // tc_levels.rs; Kikuchi 1951 gives 2.4257): the branch switch is tested here.
             let tc = 2.4256657;
             if o.temperature < tc - 0.01 {
                 assert!(

@@ -2,54 +2,17 @@
 //! 81, 988, on lattices built in code (the shipped files are checked in the root tests).
 
 use super::*;
-use crate::model::{Bond, LevelSpec, Site};
+use crate::testutil::Shape;
 
-/// A one-site-per-cell (or `nb`-site) lattice from bond and shape lists.
-/// One cluster shape: (basis site, cell offset) per site.
-type Shape = Vec<(usize, Cell)>;
-
+/// A lattice whose bonds all have J = 1.
 fn lattice(
     dim: usize,
     nb: usize,
     bonds: &[(usize, usize, Cell)],
     levels: &[(&str, Vec<Shape>)],
 ) -> Lattice {
-    let mut vectors = vec![[0.0; 3]; dim];
-    for (k, v) in vectors.iter_mut().enumerate() {
-        v[k] = 1.0;
-    }
-    Lattice {
-        name: "test".into(),
-        description: None,
-        dimension: dim,
-        vectors,
-        basis: (0..nb)
-            .map(|a| Site {
-                name: format!("s{a}"),
-                position: [0.0; 3],
-            })
-            .collect(),
-        couplings: vec![("J".into(), 1.0)],
-        field: 0.0,
-        bonds: bonds
-            .iter()
-            .map(|&(from, to, cell)| Bond {
-                from,
-                to,
-                cell,
-                coupling: "J".into(),
-                j: 1.0,
-            })
-            .collect(),
-        levels: levels
-            .iter()
-            .map(|(n, s)| LevelSpec {
-                name: n.to_string(),
-                shapes: s.clone(),
-            })
-            .collect(),
-        reference: None,
-    }
+    let bonds: Vec<_> = bonds.iter().map(|&(a, b, c)| (a, b, c, 1.0)).collect();
+    crate::testutil::lattice(dim, nb, &bonds, levels)
 }
 
 fn block2(nx: i32, ny: i32) -> Vec<(usize, Cell)> {
