@@ -203,6 +203,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         up_to: None,
         monte_carlo: true,
         progress: false,
+        field: 0.0,
     };
     let mut ladders = Vec::new();
     for file in &files {

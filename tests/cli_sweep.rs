@@ -12,7 +12,7 @@ use common::ok;
 use serde_json::Value;
 
 const HEADER: &str =
-    "level,temperature,field,magnetization,energy,free_energy,entropy,specific_heat,susceptibility";
+    "level,temperature,field,magnetization,energy,free_energy,entropy,specific_heat,susceptibility,order_parameter";
 
 /// CSV rows as (level, values of the other columns).
 fn rows(csv: &str) -> Vec<(String, Vec<f64>)> {
@@ -50,7 +50,7 @@ fn csv_header_and_one_row_per_level_temperature_field() {
     assert_eq!(keys[3], ("pair".into(), 2.0, 0.1));
     assert_eq!(keys[6], ("plaquette".into(), 2.0, 0.0));
     for (_, v) in &rows {
-        assert_eq!(v.len(), 8);
+        assert_eq!(v.len(), 9);
         // S = (U − F)/T, a thermodynamic identity (common practice).
         assert!((v[5] - (v[3] - v[4]) / v[0]).abs() < 1e-9, "{v:?}");
         assert!(

@@ -89,7 +89,7 @@ fn table_shows_levels_deviation_and_caveats() {
     );
     assert!(text.contains("approximations, not bounds"), "{text}");
     assert!(
-        text.contains("translations of the 1-site cell") && text.contains("--supercell"),
+        text.contains("every wavevector") && text.contains("(0, 0)"),
         "{text}"
     );
 }
@@ -202,9 +202,28 @@ fn antiferromagnet_orders_staggered_in_a_supercell() {
         .unwrap()
         .contains("Onsager"));
 
+    // Without a supercell the same order is found at the wavevector (1/2, 1/2), with the
+    // same Tc (bipartite gauge symmetry; common practice).
+    let plain = json(&[
+        "tc",
+        path,
+        "--levels",
+        "site,pair,plaquette",
+        "--format",
+        "json",
+    ]);
+    for name in ["site", "pair", "plaquette"] {
+        assert!(
+            (tc(&plain, name) - tc(&ferro, name)).abs() < 1e-6,
+            "{name}: {plain}"
+        );
+        let l = level(&plain, name);
+        assert_eq!(l["wavevector"], serde_json::json!([0.5, 0.5]), "{name}");
+        assert_eq!(l["supercell"], serde_json::json!([2, 2]), "{name}");
+    }
     let table = ok(&["tc", path, "--levels", "site"]);
     assert!(
-        table.contains("antiferromagnetic") && table.contains("--supercell"),
+        table.contains("(0.5, 0.5)") && table.contains("2x2"),
         "{table}"
     );
 }
@@ -220,9 +239,19 @@ fn csv_columns_of_the_contract() {
         "csv",
     ]);
     let lines: Vec<&str> = text.lines().collect();
-    assert_eq!(lines[0], "level,max_cluster_sites,tc,deviation,seconds");
+    assert_eq!(
+        lines[0],
+        "level,max_cluster_sites,tc,deviation,seconds,wavevector,supercell"
+    );
     assert_eq!(lines.len(), 3);
-    assert!(lines[1].starts_with("site,1,4,"), "{text}");
+    let site: Vec<&str> = lines[1].split(',').collect();
+    assert_eq!(&site[..2], ["site", "1"], "{text}");
+    // Mean field: Tc = zJ = 4 (common practice).
+    assert!(
+        (site[2].parse::<f64>().unwrap() - 4.0).abs() < 1e-12,
+        "{text}"
+    );
+    assert_eq!(&site[5..], ["0 0", "1x1"], "{text}");
     assert!(lines[2].starts_with("pair,2,2.88539008"), "{text}");
 }
 

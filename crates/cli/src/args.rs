@@ -63,7 +63,7 @@ pub struct InspectArgs {
     pub common: CommonArgs,
 }
 
-/// `rungs tc LATTICE [--levels a,b] [--supercell 2x2]`.
+/// `rungs tc LATTICE [--levels a,b] [--field h] [--supercell 2x2]`.
 #[derive(Debug, Clone, Args)]
 pub struct TcArgs {
     /// The lattice file, `--format` and `--output`.
@@ -72,8 +72,13 @@ pub struct TcArgs {
     /// Levels to compute, comma-separated (default: every level of the file).
     #[arg(long, value_delimiter = ',', value_name = "LEVELS")]
     pub levels: Option<Vec<String>>,
-    /// Enlarge the unit cell, e.g. 2x2, so that order breaking the primitive translations
-    /// (antiferromagnets) can set in; one factor per dimension.
+    /// Uniform field h (default: the file's `field:`). In a field Tc is where the
+    /// field-polarised phase becomes unstable (e.g. the Néel line of an antiferromagnet);
+    /// a ferromagnet has none.
+    #[arg(long, allow_negative_numbers = true, value_name = "H")]
+    pub field: Option<f64>,
+    /// Compute on an enlarged unit cell, e.g. 2x2 (one factor per dimension). Not needed
+    /// for order that breaks the translations: every level searches all wavevectors.
     #[arg(long, value_parser = parse_supercell, value_name = "N1xN2[xN3]")]
     pub supercell: Option<Supercell>,
 }
@@ -102,6 +107,10 @@ pub struct SweepArgs {
     /// Several fields: one value, a comma list, or an inclusive range start:stop:step.
     #[arg(long, value_parser = parse_reals, allow_hyphen_values = true, value_name = "LIST")]
     pub fields: Option<RealList>,
+    /// Follow the path on this cell, e.g. 2x2 (default: the smallest cell that holds
+    /// each level's ordering wavevector).
+    #[arg(long, value_parser = parse_supercell, value_name = "N1xN2[xN3]")]
+    pub supercell: Option<Supercell>,
     /// Also draw the sweep into this SVG file.
     #[arg(long, value_name = "FILE.svg")]
     pub plot: Option<PathBuf>,
@@ -120,6 +129,10 @@ pub struct LadderArgs {
     /// Also run a Monte Carlo estimate of Tc as a reference.
     #[arg(long)]
     pub mc: bool,
+    /// Uniform field h (default: the file's `field:`): each rung's Tc is that of the
+    /// field-polarised phase's instability.
+    #[arg(long, allow_negative_numbers = true, value_name = "H")]
+    pub field: Option<f64>,
     /// Also draw the ladder into this SVG file.
     #[arg(long, value_name = "FILE.svg")]
     pub plot: Option<PathBuf>,

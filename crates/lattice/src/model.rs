@@ -129,6 +129,19 @@ impl Lattice {
         l
     }
 
+    /// A copy with every bond's coupling multiplied by `factors[bond index]` (the bonds
+    /// in file order); the coupling names are kept. With factors `ε_i ε_j` of a sign per
+    /// site this is the gauge transformation `s_i → ε_i s_i`, which at h = 0 maps the
+    /// model onto one with the same free energy (e.g. a bipartite antiferromagnet onto
+    /// the ferromagnet). Factors beyond the bond count are ignored, missing ones are 1.
+    pub fn with_scaled_couplings(&self, factors: &[f64]) -> Lattice {
+        let mut l = self.clone();
+        for (b, f) in l.bonds.iter_mut().zip(factors) {
+            b.j *= f;
+        }
+        l
+    }
+
     /// A copy with one more named level: every basis site of an `n[0] × n[1] × n[2]`
     /// block of cells (unused dimensions 1), e.g. the extra rungs of `ladder --up-to`.
     /// Refused if the name is taken or reserved, or the block exceeds the engine's limit.

@@ -391,11 +391,14 @@ pub fn critical_temperature_big(
         return Ok(CriticalPoint {
             level: level.name.clone(),
             max_cluster_sites: level.max_cluster_sites(),
+            field: 0.0,
             tc: None,
             searched_down_to: t,
             mode: vec![0.0; nb],
             kind: ModeKind::Hidden,
+            ordering: None,
             amplitude: None,
+            notes: Vec::new(),
             seconds: start.elapsed().as_secs_f64(),
         });
     };
@@ -434,14 +437,25 @@ pub fn critical_temperature_big(
         .map(|&v| response[probe.odd.pos[v]])
         .collect();
     let (mode, kind) = crate::tc::classify(&components);
+    let site_mode = mode
+        .iter()
+        .map(|&c| nalgebra::Complex::new(c, 0.0))
+        .collect();
     Ok(CriticalPoint {
         level: level.name.clone(),
         max_cluster_sites: level.max_cluster_sites(),
+        field: 0.0,
         tc: Some(tc),
         searched_down_to: t_lo,
         mode,
         kind,
+        ordering: Some(crate::ordering::Ordering::new(
+            lattice.dimension(),
+            [0.0; 3],
+            site_mode,
+        )),
         amplitude,
+        notes: Vec::new(),
         seconds: start.elapsed().as_secs_f64(),
     })
 }

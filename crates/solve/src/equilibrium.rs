@@ -193,12 +193,12 @@ pub fn minimise_with(
                     xn[v] = x[v] + alpha * d[k];
                 }
                 if let Some(evn) = f.evaluate(&xn) {
-                    let armijo = evn.free_energy <= ev.free_energy + 1e-4 * alpha * slope;
+                    let armijo = evn.merit <= ev.merit + 1e-4 * alpha * slope;
                     // Near convergence F changes by less than its rounding; then accept a
                     // step that does not raise F beyond rounding and shrinks the gradient.
-                    let noise = 1e-14 * ev.free_energy.abs().max(1.0);
-                    let flat = evn.free_energy <= ev.free_energy + noise
-                        && block_norm(&evn.gradient, block) < gn;
+                    let noise = 1e-14 * ev.merit.abs().max(1e-300);
+                    let flat =
+                        evn.merit <= ev.merit + noise && block_norm(&evn.gradient, block) < gn;
                     if armijo || flat {
                         x.clone_from(&xn);
                         ev = evn;
@@ -246,12 +246,8 @@ pub fn minimise_with(
     })
 }
 
-/// The product state with every site magnetisation `m`: `ξ_c = m^{|c|}` (always feasible
-/// for |m| < 1). The paramagnetic start is `m = 0`.
+/// The product state with every site magnetisation `m` (always feasible for |m| < 1):
+/// `ξ_c = m^{|c|}` in the Walsh basis. The paramagnetic start is `m = 0`.
 pub fn product_state(f: &Functional, m: f64) -> Vec<f64> {
-    f.level()
-        .variables
-        .iter()
-        .map(|c| m.powi(c.len() as i32))
-        .collect()
+    f.product_state_sites(&vec![m; f.level().sites_per_cell])
 }

@@ -1,20 +1,42 @@
-//! The cluster-variation free energy of correlation variables, one functional for every
-//! level (Kikuchi 1951; correlation-function form of Sanchez, Ducastelle & Gratias 1984).
-//!
-//! For a region of n sites, `p(σ) = 2^-n Σ_{c⊆region} ξ_c χ_c(σ)` with `ξ_∅ = 1`, and per
-//! cell
+//! The cluster-variation free energy of a level, one functional for every level
+//! (Kikuchi 1951, Phys. Rev. 81, 988; correlation-function form of Sanchez, Ducastelle
+//! & Gratias 1984, Physica A 128, 334), in either of two coordinate systems
+//! ([`Basis`]):
 //!
 //! ```text
-//! F(ξ) = E(ξ) − T Σ_γ a_γ S_γ,   S_γ = −Σ_σ p_γ ln p_γ,
-//! E(ξ) = −Σ_bonds J_b ξ_b − h Σ_a ξ_a          (ξ_b = ξ_i ξ_j for a factorised bond)
-//! ∂S/∂ξ_c      = −2^-n Σ_σ χ_c(σ) ln p(σ)      (one WHT of ln p)
-//! ∂²S/∂ξ_c∂ξ_d = −4^-n Σ_σ χ_{c△d}(σ) / p(σ)   (one WHT of 1/p, read at c XOR d)
+//! F(x) = E(x) − T Σ_γ a_γ S_γ,   S_γ = −Σ_σ p_γ ln p_γ,   p_γ = p_ref,γ + T_γ x
+//! ∂S/∂x_c       = −(T_γᵀ ln p)[c]
+//! ∂²S/∂x_c∂x_d  = −(T_γᵀ diag(1/p) T_γ)[c, d]
 //! ```
+//!
+//! * Walsh basis, `x = ξ − r` with ξ the correlation functions `⟨Π_{i∈c} s_i⟩` and `r` an
+//!   optional reference state: `p = 2^-n W [1, r + x]`, `∂S/∂ξ_c = −2^-n (W ln p)[c]`,
+//!   `∂²S/∂ξ_c∂ξ_d = −4^-n (W (1/p))[c ⊕ d]`. At h = 0 the paramagnet has every odd ξ
+//!   zero and the Hessian splits into an even and an odd block: the basis of the Tc
+//!   search. The reference keeps the probabilities of a state near r precise (the chain
+//!   at T = 0.1 J has `1 − ξ_bond = 4·10⁻⁹`: stored as an offset, not as a difference of
+//!   numbers near 1).
+//! * Flip basis relative to a pattern ε (one sign per basis site), `x = ζ` with ζ_c the
+//!   probability that every site of c is flipped against ε: `p(A) = (M↑ [1, ζ])[A]`
+//!   (inclusion–exclusion over supersets), `∂S/∂ζ_c = −(M ln p)[c]`,
+//!   `∂²S/∂ζ_c∂ζ_d = −(−1)^{|c|+|d|} (Z (1/p))[c ∧ d]` (see [`crate::subset`]). In an
+//!   ordered or field-polarised state at low temperature the ζ are tiny and every cluster
+//!   probability keeps its relative precision (an excitation of probability 10⁻⁶⁰ is
+//!   still a positive double), where the Walsh form would subtract numbers near 1.
+//!
+//! The energy is linear in either set of coordinates (quadratic only for bonds in no
+//! region, i.e. the site level, where `⟨s_i s_j⟩ = ξ_i ξ_j` makes the site level exactly
+//! the Bogoliubov mean-field bound).
+
+use std::sync::Arc;
 
 use nalgebra::{DMatrix, DVector};
 use rungs_lattice::{BondTerm, Level};
 
-use crate::wht::wht;
+use crate::dd::Dd;
+use crate::subset::{
+    mobius_subset, mobius_superset, parity_sign, walsh, zeta_subset, zeta_superset,
+};
 
 /// Most correlation variables a level may have for the dense engine (a 6000² Hessian is
 /// 288 MB; the square 3×3 block has 400 variables, the 4×4 block 57,856).
@@ -34,12 +56,75 @@ pub fn check_size(level: &Level) -> Result<(), crate::error::SolveError> {
     Ok(())
 }
 
-/// One region's part of the entropy: its weight `a_γ` and the variable of each subset.
+/// The coordinates of a state.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Basis {
+    /// Correlation functions ξ_c = ⟨Π_{i∈c} s_i⟩.
+    Walsh,
+    /// Flip probabilities ζ_c = P(every site of c has s_i = −ε_i), relative to a pattern
+    /// ε of one sign (±1) per basis site.
+    Flip {
+        /// ε per basis site.
+        pattern: Vec<f64>,
+    },
+}
+
+impl Basis {
+    /// The flip basis of the all-up pattern (`sites` basis sites).
+    pub fn flip_up(sites: usize) -> Basis {
+        Basis::Flip {
+            pattern: vec![1.0; sites],
+        }
+    }
+}
+
+/// One region's part of the entropy.
 #[derive(Debug, Clone)]
 struct RegionTerm {
     n: usize,
     coefficient: f64,
     vars: Vec<u32>,
+    /// The basis site of each of the region's sites.
+    basis_sites: Vec<usize>,
+    /// Flip basis: bit k set when the pattern is −1 on site k (maps flip-set labels to
+    /// spin labels: spin-label = flip-label XOR negative).
+    negative: usize,
+}
+
+impl RegionTerm {
+    /// Bit k set when `pattern` is −1 on the region's site k.
+    fn negative_mask(&self, pattern: &[f64]) -> usize {
+        self.basis_sites
+            .iter()
+            .enumerate()
+            .filter(|(_, &a)| pattern[a] < 0.0)
+            .fold(0usize, |m, (k, _)| m | 1 << k)
+    }
+}
+
+/// The energy as `E = e0 + lin · v + Σ c v_a v_b`, v = the variables' values.
+#[derive(Debug, Clone, Default)]
+struct EnergyForm {
+    e0_bonds: f64,
+    e0_field: f64,
+    lin_bonds: Vec<f64>,
+    lin_field: Vec<f64>,
+    quad: Vec<(usize, usize, f64)>,
+    /// The bond (index in the level's `bond_terms`) of each quadratic term.
+    quad_bonds: Vec<usize>,
+}
+
+/// Everything about a functional that does not depend on (T, h).
+#[derive(Debug)]
+struct Setup {
+    regions: Vec<RegionTerm>,
+    basis: Basis,
+    /// Reference values r (variables are offsets from them) and each region's exact
+    /// reference probabilities.
+    reference: Option<(Vec<f64>, Vec<Vec<Dd>>)>,
+    energy: EnergyForm,
+    /// Per basis site: (variable, ∂m_a/∂x).
+    sites: Vec<(usize, f64)>,
 }
 
 /// The free-energy functional of one level at temperature `t` and field `h`.
@@ -48,7 +133,7 @@ pub struct Functional<'a> {
     level: &'a Level,
     t: f64,
     h: f64,
-    regions: Vec<RegionTerm>,
+    setup: Arc<Setup>,
 }
 
 /// Value and gradient of F at a point, with the entropy and energy parts.
@@ -60,26 +145,127 @@ pub struct Evaluation {
     pub energy: f64,
     /// Entropy per cell, `Σ_γ a_γ S_γ`.
     pub entropy: f64,
-    /// ∂F/∂ξ for every variable.
+    /// ∂F/∂x for every variable.
     pub gradient: Vec<f64>,
+    /// F without its constant part (the energy of the reference or of the flip
+    /// pattern): the same differences as `free_energy`, without the rounding of a large
+    /// constant, so that a line search can compare states whose free energies differ by
+    /// less than 10⁻¹⁶ of F (low temperature).
+    pub merit: f64,
+}
+
+/// How a region's Hessian entry is read from its kernel array.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum KernelKind {
+    /// Walsh basis: `H_kl = scale · K[k ⊕ l]`, `K = W(1/p)`.
+    Xor,
+    /// Flip basis: `H_kl = scale · (−1)^{|k|+|l|} K[k ∧ l]`, `K = Z(1/p)`.
+    And,
+}
+
+/// One region's contribution to the Hessian: `H_{var k, var l} += entry(k, l)` for
+/// every pair of non-empty masks k, l.
+#[derive(Debug, Clone)]
+pub struct RegionKernel<'f> {
+    /// Sites of the region.
+    pub n: usize,
+    /// `T a_γ` times the transform's normalisation.
+    pub scale: f64,
+    /// The variable of each mask (entry 0 unused).
+    pub vars: &'f [u32],
+    /// The kernel array, length 2^n.
+    pub kernel: Vec<f64>,
+    /// The kernel's low parts when it was computed in double-double.
+    pub kernel_lo: Option<Vec<f64>>,
+    /// How to read it.
+    pub kind: KernelKind,
+}
+
+impl RegionKernel<'_> {
+    /// The Hessian contribution for masks k, l.
+    #[inline]
+    pub fn entry(&self, k: usize, l: usize) -> f64 {
+        match self.kind {
+            KernelKind::Xor => self.scale * self.kernel[k ^ l],
+            KernelKind::And => self.scale * parity_sign(k ^ l) * self.kernel[k & l],
+        }
+    }
+
+    /// The same in double-double (exact to the kernel's precision).
+    #[inline]
+    pub fn entry_dd(&self, k: usize, l: usize) -> Dd {
+        let (idx, sign) = match self.kind {
+            KernelKind::Xor => (k ^ l, 1.0),
+            KernelKind::And => (k & l, parity_sign(k ^ l)),
+        };
+        let v = Dd {
+            hi: self.kernel[idx],
+            lo: self.kernel_lo.as_ref().map_or(0.0, |lo| lo[idx]),
+        };
+        v.mul_f64(self.scale * sign)
+    }
 }
 
 impl<'a> Functional<'a> {
-    /// The functional of `level` at temperature `t` (> 0) and field `h`.
+    /// The functional of `level` at temperature `t` (> 0) and field `h`, on correlation
+    /// functions (Walsh basis, no reference).
     pub fn new(level: &'a Level, t: f64, h: f64) -> Functional<'a> {
-        let regions = level
+        Functional::with_basis(level, t, h, Basis::Walsh, None)
+    }
+
+    /// The functional on the given coordinates; with `reference = Some(r)` the variables
+    /// are offsets from r (values `r + x`), and the reference's cluster probabilities
+    /// are computed once in double-double.
+    pub fn with_basis(
+        level: &'a Level,
+        t: f64,
+        h: f64,
+        basis: Basis,
+        reference: Option<Vec<f64>>,
+    ) -> Functional<'a> {
+        let pattern = match &basis {
+            Basis::Walsh => None,
+            Basis::Flip { pattern } => Some(pattern.as_slice()),
+        };
+        let regions: Vec<RegionTerm> = level
             .active_regions()
-            .map(|r| RegionTerm {
-                n: r.cluster.len(),
-                coefficient: r.coefficient as f64,
-                vars: r.subset_vars.clone(),
+            .map(|r| {
+                let mut rt = RegionTerm {
+                    n: r.cluster.len(),
+                    coefficient: r.coefficient as f64,
+                    vars: r.subset_vars.clone(),
+                    basis_sites: r.cluster.sites().map(|(a, _)| a).collect(),
+                    negative: 0,
+                };
+                rt.negative = pattern.map_or(0, |eps| rt.negative_mask(eps));
+                rt
+            })
+            .collect();
+        let reference = reference.map(|r| {
+            let p_ref = regions
+                .iter()
+                .map(|rt| reference_probabilities(&basis, rt, &r))
+                .collect();
+            (r, p_ref)
+        });
+        let energy = energy_form(level, pattern);
+        let sites = (0..level.sites_per_cell)
+            .map(|a| {
+                let v = level.site_vars[a];
+                (v, pattern.map_or(1.0, |eps| -2.0 * eps[a]))
             })
             .collect();
         Functional {
             level,
             t,
             h,
-            regions,
+            setup: Arc::new(Setup {
+                regions,
+                basis,
+                reference,
+                energy,
+                sites,
+            }),
         }
     }
 
@@ -95,13 +281,21 @@ impl<'a> Functional<'a> {
     pub fn field(&self) -> f64 {
         self.h
     }
-    /// The same functional at another temperature and field.
+    /// The coordinates.
+    pub fn basis(&self) -> &Basis {
+        &self.setup.basis
+    }
+    /// The reference values the variables are offsets from, if any.
+    pub fn reference(&self) -> Option<&[f64]> {
+        self.setup.reference.as_ref().map(|(r, _)| r.as_slice())
+    }
+    /// The same functional at another temperature and field (shares its setup).
     pub fn at(&self, t: f64, h: f64) -> Functional<'a> {
         Functional {
             level: self.level,
             t,
             h,
-            regions: self.regions.clone(),
+            setup: Arc::clone(&self.setup),
         }
     }
 
@@ -114,94 +308,233 @@ impl<'a> Functional<'a> {
         self.level.variables.is_empty()
     }
 
-    /// Fill `p` with the probabilities of region `r` at `x`; false if any is ≤ 0.
-    fn probabilities(&self, r: &RegionTerm, x: &[f64], p: &mut [f64]) -> bool {
-        p[0] = 1.0;
+    /// The values of the variables, `r + x` (x itself without a reference).
+    pub fn values(&self, x: &[f64]) -> Vec<f64> {
+        match &self.setup.reference {
+            Some((r, _)) => r.iter().zip(x).map(|(a, b)| a + b).collect(),
+            None => x.to_vec(),
+        }
+    }
+
+    /// The product state with magnetisation `m[a]` on basis site a (|m| < 1: always
+    /// feasible), as offsets from the reference: ξ_c = Π_{i∈c} m_i, or
+    /// ζ_c = Π_{i∈c} (1 − ε_i m_i)/2.
+    pub fn product_state_sites(&self, m: &[f64]) -> Vec<f64> {
+        let r = self.reference();
+        self.level
+            .variables
+            .iter()
+            .enumerate()
+            .map(|(v, c)| {
+                let value: f64 = match &self.setup.basis {
+                    Basis::Walsh => c.sites().map(|(a, _)| m[a]).product(),
+                    Basis::Flip { pattern } => c
+                        .sites()
+                        .map(|(a, _)| 0.5 * (1.0 - pattern[a] * m[a]))
+                        .product(),
+                };
+                value - r.map_or(0.0, |r| r[v])
+            })
+            .collect()
+    }
+
+    /// Magnetisation of each basis site at x.
+    pub fn site_magnetizations(&self, x: &[f64]) -> Vec<f64> {
+        let r = self.reference();
+        self.setup
+            .sites
+            .iter()
+            .enumerate()
+            .map(|(a, &(v, dm))| {
+                let value = x[v] + r.map_or(0.0, |r| r[v]);
+                match &self.setup.basis {
+                    Basis::Walsh => value,
+                    Basis::Flip { pattern } => pattern[a] + dm * value,
+                }
+            })
+            .collect()
+    }
+
+    /// Per basis site: its variable and `∂m_a/∂x` there (1 for ξ_a; −2ε_a for ζ_a).
+    pub fn site_derivatives(&self) -> &[(usize, f64)] {
+        &self.setup.sites
+    }
+
+    /// The cluster probabilities of region `r` at x, in f64; false if any is ≤ 0. The
+    /// most probable state, when above 1/2, is recomputed as one minus the others, so
+    /// that its logarithm ([`ln_largest`]) is precise.
+    fn probabilities(&self, r: &RegionTerm, ri: usize, x: &[f64], p: &mut [f64]) -> bool {
+        p[0] = 0.0;
         for (slot, &v) in p.iter_mut().zip(&r.vars).skip(1) {
             *slot = x[v as usize];
         }
-        wht(p);
-        let scale = 1.0 / (1u64 << r.n) as f64;
-        let mut ok = true;
-        for q in p.iter_mut() {
-            *q *= scale;
-            ok &= *q > 0.0;
+        self.transform(r, p);
+        match &self.setup.reference {
+            Some((_, p_ref)) => {
+                for (q, pr) in p.iter_mut().zip(&p_ref[ri]) {
+                    *q = pr.add_f64(*q).to_f64();
+                }
+            }
+            None => match self.setup.basis {
+                Basis::Walsh => {
+                    let u = 1.0 / (1usize << r.n) as f64;
+                    p.iter_mut().for_each(|q| *q += u);
+                }
+                Basis::Flip { .. } => p[0] += 1.0,
+            },
         }
-        ok
+        p.iter().all(|&q| q > 0.0)
+    }
+
+    /// The linear part of the basis map, applied to `p` (holding the variables' values
+    /// per mask, entry 0 = 0) in place.
+    fn transform(&self, r: &RegionTerm, p: &mut [f64]) {
+        match self.setup.basis {
+            Basis::Walsh => {
+                walsh(p);
+                let scale = 1.0 / (1usize << r.n) as f64;
+                p.iter_mut().for_each(|q| *q *= scale);
+            }
+            Basis::Flip { .. } => mobius_superset(p),
+        }
+    }
+
+    /// The probabilities of region `r` in double-double (for precise Hessians).
+    fn probabilities_dd(&self, r: &RegionTerm, ri: usize, x: &[f64]) -> Option<Vec<Dd>> {
+        let size = 1usize << r.n;
+        let mut lin = vec![0.0; size];
+        for (slot, &v) in lin.iter_mut().zip(&r.vars).skip(1) {
+            *slot = x[v as usize];
+        }
+        let mut p: Vec<Dd> = lin.iter().map(|&v| Dd::from_f64(v)).collect();
+        match self.setup.basis {
+            Basis::Walsh => {
+                walsh(&mut p);
+                let scale = 1.0 / size as f64;
+                p.iter_mut().for_each(|q| *q = q.mul_f64(scale));
+            }
+            Basis::Flip { .. } => mobius_superset(&mut p),
+        }
+        match &self.setup.reference {
+            Some((_, p_ref)) => p.iter_mut().zip(&p_ref[ri]).for_each(|(q, pr)| *q += *pr),
+            None => match self.setup.basis {
+                Basis::Walsh => {
+                    let u = 1.0 / size as f64;
+                    p.iter_mut().for_each(|q| *q = q.add_f64(u));
+                }
+                Basis::Flip { .. } => p[0] = p[0].add_f64(1.0),
+            },
+        }
+        p.iter().all(|q| q.hi > 0.0).then_some(p)
     }
 
     /// Whether every region probability is strictly positive at `x`.
     pub fn feasible(&self, x: &[f64]) -> bool {
         let mut p = Vec::new();
-        self.regions.iter().all(|r| {
+        self.setup.regions.iter().enumerate().all(|(ri, r)| {
             p.resize(1 << r.n, 0.0);
-            self.probabilities(r, x, &mut p)
+            self.probabilities(r, ri, x, &mut p)
         })
     }
 
-    /// Energy per cell `E(ξ)`.
+    /// Energy per cell `E(x)`.
     pub fn energy(&self, x: &[f64]) -> f64 {
-        let mut e = 0.0;
-        for b in &self.level.bond_terms {
-            e -= match *b {
-                BondTerm::Correlated { var, j } => j * x[var],
-                BondTerm::Factorised { a, b, j } => j * x[a] * x[b],
-            };
-        }
-        e - self.h * self.level.site_vars.iter().map(|&v| x[v]).sum::<f64>()
+        let (constant, variable) = self.energy_parts(x);
+        constant + variable
     }
 
-    /// ∂E/∂ξ added into `g`.
-    fn add_energy_gradient(&self, x: &[f64], g: &mut [f64]) {
-        for b in &self.level.bond_terms {
-            match *b {
-                BondTerm::Correlated { var, j } => g[var] -= j,
-                BondTerm::Factorised { a, b, j } => {
-                    g[a] -= j * x[b];
-                    g[b] -= j * x[a];
+    /// The energy as (constant part, part that varies with x): the constant is the
+    /// pattern's energy (flip basis) plus the linear terms at the reference.
+    pub fn energy_parts(&self, x: &[f64]) -> (f64, f64) {
+        let e = &self.setup.energy;
+        let r = self.reference();
+        let mut constant = e.e0_bonds + self.h * e.e0_field;
+        let mut variable = 0.0;
+        for (k, &xk) in x.iter().enumerate() {
+            let c = e.lin_bonds[k] + self.h * e.lin_field[k];
+            if c != 0.0 {
+                variable += c * xk;
+                if let Some(r) = r {
+                    constant += c * r[k];
                 }
             }
         }
-        for &v in &self.level.site_vars {
-            g[v] -= self.h;
+        if !e.quad.is_empty() {
+            let v = self.values(x);
+            for &(a, b, c) in &e.quad {
+                variable += c * v[a] * v[b];
+            }
         }
+        (constant, variable)
+    }
+
+    /// `∇E` at x (constant except for factorised bonds).
+    pub fn energy_gradient(&self, x: &[f64]) -> Vec<f64> {
+        let e = &self.setup.energy;
+        let mut g: Vec<f64> = e
+            .lin_bonds
+            .iter()
+            .zip(&e.lin_field)
+            .map(|(b, f)| b + self.h * f)
+            .collect();
+        if !e.quad.is_empty() {
+            let v = self.values(x);
+            for &(a, b, c) in &e.quad {
+                g[a] += c * v[b];
+                g[b] += c * v[a];
+            }
+        }
+        g
+    }
+
+    /// `∂(∇F)/∂h`: the field enters linearly, so this is constant.
+    pub fn field_gradient(&self) -> Vec<f64> {
+        self.setup.energy.lin_field.clone()
     }
 
     /// F, E, S and ∇F at `x`, or `None` where some cluster probability is not positive.
     pub fn evaluate(&self, x: &[f64]) -> Option<Evaluation> {
-        let mut gradient = vec![0.0; self.len()];
+        let mut gradient = self.energy_gradient(x);
         let entropy = self.entropy_and_gradient(x, &mut gradient, -self.t)?;
-        let energy = self.energy(x);
-        self.add_energy_gradient(x, &mut gradient);
+        let (constant, variable) = self.energy_parts(x);
+        let merit = variable - self.t * entropy;
         Some(Evaluation {
-            free_energy: energy - self.t * entropy,
-            energy,
+            free_energy: constant + merit,
+            energy: constant + variable,
             entropy,
             gradient,
+            merit,
         })
     }
 
-    /// Entropy per cell; adds `scale · ∂S/∂ξ` into `g`. `None` if infeasible.
+    /// Entropy per cell; adds `scale · ∂S/∂x` into `g`. `None` if infeasible.
     fn entropy_and_gradient(&self, x: &[f64], g: &mut [f64], scale: f64) -> Option<f64> {
         let mut p = Vec::new();
         let mut s_total = 0.0;
-        for r in &self.regions {
+        for (ri, r) in self.setup.regions.iter().enumerate() {
             p.resize(1 << r.n, 0.0);
-            if !self.probabilities(r, x, &mut p) {
+            if !self.probabilities(r, ri, x, &mut p) {
                 return None;
             }
             let mut s = 0.0;
-            for q in p.iter_mut() {
-                let l = q.ln();
-                s -= *q * l;
-                *q = l;
-            }
+            ln_largest(&mut p, |q, l| s -= q * l);
             s_total += r.coefficient * s;
-            wht(&mut p);
-            let f = scale * r.coefficient / (1u64 << r.n) as f64;
-            for (mask, &v) in r.vars.iter().enumerate().skip(1) {
-                // ∂S/∂ξ_c = −2^-n (W ln p)[c]
-                g[v as usize] -= f * p[mask];
+            // p now holds ln p; ∂S/∂x_c = −(Tᵀ ln p)[c].
+            let f = scale * r.coefficient;
+            match self.setup.basis {
+                Basis::Walsh => {
+                    walsh(&mut p);
+                    let f = f / (1usize << r.n) as f64;
+                    for (mask, &v) in r.vars.iter().enumerate().skip(1) {
+                        g[v as usize] -= f * p[mask];
+                    }
+                }
+                Basis::Flip { .. } => {
+                    mobius_subset(&mut p);
+                    for (mask, &v) in r.vars.iter().enumerate().skip(1) {
+                        g[v as usize] -= f * p[mask];
+                    }
+                }
             }
         }
         Some(s_total)
@@ -212,9 +545,9 @@ impl<'a> Functional<'a> {
     pub fn hessian_rounding(&self, x: &[f64]) -> f64 {
         let mut p = Vec::new();
         let mut total = 0.0;
-        for r in &self.regions {
+        for (ri, r) in self.setup.regions.iter().enumerate() {
             p.resize(1 << r.n, 0.0);
-            if !self.probabilities(r, x, &mut p) {
+            if !self.probabilities(r, ri, x, &mut p) {
                 return f64::INFINITY;
             }
             let pmin = p.iter().copied().fold(f64::INFINITY, f64::min);
@@ -230,83 +563,345 @@ impl<'a> Functional<'a> {
         Some(g)
     }
 
+    /// The Hessian kernel of every active region at `x` (`None` if infeasible); with
+    /// `precise`, 1/p and its transform are computed in double-double.
+    pub fn region_kernels(&self, x: &[f64], precise: bool) -> Option<Vec<RegionKernel<'_>>> {
+        let mut out = Vec::with_capacity(self.setup.regions.len());
+        let mut p = Vec::new();
+        for (ri, r) in self.setup.regions.iter().enumerate() {
+            let size = 1usize << r.n;
+            let mut kernel_lo = None;
+            let kernel = if precise {
+                let p = self.probabilities_dd(r, ri, x)?;
+                let mut k: Vec<Dd> = p.iter().map(|q| q.recip()).collect();
+                match self.setup.basis {
+                    Basis::Walsh => walsh(&mut k),
+                    Basis::Flip { .. } => zeta_subset(&mut k),
+                }
+                let (hi, lo) = k
+                    .iter()
+                    .map(|v| {
+                        let r = Dd::from_f64(v.hi).add_f64(v.lo);
+                        (r.hi, r.lo)
+                    })
+                    .unzip();
+                kernel_lo = Some(lo);
+                hi
+            } else {
+                p.resize(size, 0.0);
+                if !self.probabilities(r, ri, x, &mut p) {
+                    return None;
+                }
+                let mut k: Vec<f64> = p.iter().map(|q| 1.0 / q).collect();
+                match self.setup.basis {
+                    Basis::Walsh => walsh(&mut k),
+                    Basis::Flip { .. } => zeta_subset(&mut k),
+                }
+                k
+            };
+            let (scale, kind) = match self.setup.basis {
+                // ∂²F/∂ξ_c∂ξ_d = −T a ∂²S = T a 4^-n (W 1/p)[c ⊕ d]
+                Basis::Walsh => (
+                    self.t * r.coefficient / (size as f64 * size as f64),
+                    KernelKind::Xor,
+                ),
+                // ∂²F/∂ζ_c∂ζ_d = T a (−1)^{|c|+|d|} (Z 1/p)[c ∧ d]
+                Basis::Flip { .. } => (self.t * r.coefficient, KernelKind::And),
+            };
+            out.push(RegionKernel {
+                n: r.n,
+                scale,
+                vars: &r.vars,
+                kernel,
+                kernel_lo,
+                kind,
+            });
+        }
+        Some(out)
+    }
+
+    /// The factorised-bond part of the Hessian: `(a, b, c)` adds c at (a, b) and (b, a).
+    pub fn quadratic_terms(&self) -> &[(usize, usize, f64)] {
+        &self.setup.energy.quad
+    }
+
+    /// For each of [`Functional::quadratic_terms`], its bond (index into the level's
+    /// `bond_terms`, which follow the lattice's bonds).
+    pub fn quadratic_bonds(&self) -> &[usize] {
+        &self.setup.energy.quad_bonds
+    }
+
     /// The Hessian of F restricted to the variables `vars` (`pos[v]` = row of variable v
     /// or `usize::MAX` when v is not in the block). Dense: `Σ_γ 4^{n_γ}` operations.
     pub fn hessian_block(&self, x: &[f64], vars: &[usize], pos: &[usize]) -> Option<DMatrix<f64>> {
+        self.hessian_block_with(x, vars, pos, false)
+    }
+
+    /// [`Functional::hessian_block`] with every region's kernel and the sum over
+    /// regions in double-double: entries keep their relative precision when positive
+    /// and negative regions cancel (a paramagnet's soft mode at low temperature).
+    pub fn hessian_block_precise(
+        &self,
+        x: &[f64],
+        vars: &[usize],
+        pos: &[usize],
+    ) -> Option<DMatrix<f64>> {
+        self.hessian_block_with(x, vars, pos, true)
+    }
+
+    fn hessian_block_with(
+        &self,
+        x: &[f64],
+        vars: &[usize],
+        pos: &[usize],
+        precise: bool,
+    ) -> Option<DMatrix<f64>> {
         let m = vars.len();
+        let kernels = self.region_kernels(x, precise)?;
+        let mut acc = vec![Dd::ZERO; if precise { m * m } else { 0 }];
         let mut h = DMatrix::<f64>::zeros(m, m);
-        let mut p = Vec::new();
-        for r in &self.regions {
-            let size = 1usize << r.n;
-            p.resize(size, 0.0);
-            if !self.probabilities(r, x, &mut p) {
-                return None;
-            }
-            for q in p.iter_mut() {
-                *q = 1.0 / *q;
-            }
-            wht(&mut p);
-            // ∂²F/∂ξ_c∂ξ_d = −T a ∂²S = T a 4^-n (W 1/p)[c ⊕ d]
-            let f = self.t * r.coefficient / (size as f64 * size as f64);
+        for k in &kernels {
+            let size = 1usize << k.n;
             let rows: Vec<(usize, usize)> = (1..size)
                 .filter_map(|c| {
-                    let row = pos[r.vars[c] as usize];
+                    let row = pos[k.vars[c] as usize];
                     (row != usize::MAX).then_some((c, row))
                 })
                 .collect();
             for &(c, rc) in &rows {
                 for &(d, rd) in &rows {
-                    h[(rc, rd)] += f * p[c ^ d];
+                    if precise {
+                        acc[rc + m * rd] += k.entry_dd(c, d);
+                    } else {
+                        h[(rc, rd)] += k.entry(c, d);
+                    }
                 }
             }
         }
-        for b in &self.level.bond_terms {
-            if let BondTerm::Factorised { a, b, j } = *b {
-                let (pa, pb) = (pos[a], pos[b]);
-                if pa != usize::MAX && pb != usize::MAX {
-                    h[(pa, pb)] -= j;
-                    h[(pb, pa)] -= j;
+        for &(a, b, c) in self.quadratic_terms() {
+            let (pa, pb) = (pos[a], pos[b]);
+            if pa != usize::MAX && pb != usize::MAX {
+                if precise {
+                    acc[pa + m * pb] = acc[pa + m * pb].add_f64(c);
+                    acc[pb + m * pa] = acc[pb + m * pa].add_f64(c);
+                } else {
+                    h[(pa, pb)] += c;
+                    h[(pb, pa)] += c;
+                }
+            }
+        }
+        if precise {
+            for j in 0..m {
+                for i in 0..m {
+                    h[(i, j)] = acc[i + m * j].to_f64();
                 }
             }
         }
         Some(h)
     }
 
-    /// Hessian–vector product `H v` over all variables, matrix-free: per region two WHTs
-    /// of length 2^n (`H v = T a 4^-n W diag(1/p) W v` gathered onto the variables).
+    /// Hessian–vector product `H v` over all variables, matrix-free: per region two
+    /// transforms of length 2^n (Walsh: `T a 4^-n W diag(1/p) W v`; flip:
+    /// `T a (−1)^{|k|} Z diag(1/p) Z↑ ((−1)^{|l|} v)`) gathered onto the variables.
     pub fn hessian_vector(&self, x: &[f64], v: &[f64], out: &mut [f64]) -> Option<()> {
         out.iter_mut().for_each(|o| *o = 0.0);
         let mut p = Vec::new();
         let mut w = Vec::new();
-        for r in &self.regions {
+        for (ri, r) in self.setup.regions.iter().enumerate() {
             let size = 1usize << r.n;
             p.resize(size, 0.0);
             w.resize(size, 0.0);
-            if !self.probabilities(r, x, &mut p) {
+            if !self.probabilities(r, ri, x, &mut p) {
                 return None;
             }
             w[0] = 0.0;
-            for (slot, &var) in w.iter_mut().zip(&r.vars).skip(1) {
-                *slot = v[var as usize];
-            }
-            wht(&mut w);
-            for (a, q) in w.iter_mut().zip(&p) {
-                *a /= q;
-            }
-            wht(&mut w);
-            let f = self.t * r.coefficient / (size as f64 * size as f64);
-            for (mask, &var) in r.vars.iter().enumerate().skip(1) {
-                out[var as usize] += f * w[mask];
+            match self.setup.basis {
+                Basis::Walsh => {
+                    for (slot, &var) in w.iter_mut().zip(&r.vars).skip(1) {
+                        *slot = v[var as usize];
+                    }
+                    walsh(&mut w);
+                    w.iter_mut().zip(&p).for_each(|(a, q)| *a /= q);
+                    walsh(&mut w);
+                    let f = self.t * r.coefficient / (size as f64 * size as f64);
+                    for (mask, &var) in r.vars.iter().enumerate().skip(1) {
+                        out[var as usize] += f * w[mask];
+                    }
+                }
+                Basis::Flip { .. } => {
+                    for (mask, (slot, &var)) in w.iter_mut().zip(&r.vars).enumerate().skip(1) {
+                        *slot = parity_sign(mask) * v[var as usize];
+                    }
+                    zeta_superset(&mut w);
+                    w.iter_mut().zip(&p).for_each(|(a, q)| *a /= q);
+                    zeta_subset(&mut w);
+                    let f = self.t * r.coefficient;
+                    for (mask, &var) in r.vars.iter().enumerate().skip(1) {
+                        out[var as usize] += f * parity_sign(mask) * w[mask];
+                    }
+                }
             }
         }
-        for b in &self.level.bond_terms {
-            if let BondTerm::Factorised { a, b, j } = *b {
-                out[a] -= j * v[b];
-                out[b] -= j * v[a];
-            }
+        for &(a, b, c) in self.quadratic_terms() {
+            out[a] += c * v[b];
+            out[b] += c * v[a];
         }
         Some(())
     }
+
+    /// The probabilities of region orbit `ri` (index among the active regions) at x, in
+    /// spin labels (bit k set ⇔ spin k is −1), or `None` if infeasible.
+    pub fn region_probabilities(&self, ri: usize, x: &[f64]) -> Option<Vec<f64>> {
+        let r = &self.setup.regions[ri];
+        let mut p = vec![0.0; 1 << r.n];
+        if !self.probabilities(r, ri, x, &mut p) {
+            return None;
+        }
+        Some(match self.setup.basis {
+            Basis::Walsh => p,
+            Basis::Flip { .. } => (0..p.len()).map(|s| p[s ^ r.negative]).collect(),
+        })
+    }
+
+    /// The coordinates, in `basis` (no reference), of the state x of this functional:
+    /// every variable is read from the distribution of the first active region holding
+    /// it (ξ_k = (W p)[k]; ζ_k = (Z↑ p_flip)[k]). Exact for a consistent state; precise
+    /// as long as the region probabilities are.
+    pub fn convert(&self, x: &[f64], basis: &Basis) -> Option<Vec<f64>> {
+        let mut out = vec![f64::NAN; self.len()];
+        let mut seen = vec![false; self.len()];
+        for (ri, r) in self.setup.regions.iter().enumerate() {
+            if r.vars[1..].iter().all(|&v| seen[v as usize]) {
+                continue;
+            }
+            let mut p = self.region_probabilities(ri, x)?;
+            match basis {
+                Basis::Walsh => walsh(&mut p),
+                Basis::Flip { pattern } => {
+                    let negative = r.negative_mask(pattern);
+                    p = (0..p.len()).map(|a| p[a ^ negative]).collect();
+                    zeta_superset(&mut p);
+                }
+            }
+            for (mask, &v) in r.vars.iter().enumerate().skip(1) {
+                if !seen[v as usize] {
+                    seen[v as usize] = true;
+                    out[v as usize] = p[mask];
+                }
+            }
+        }
+        seen.iter().all(|&s| s).then_some(out)
+    }
+}
+
+/// Replace every probability by its logarithm, calling `visit(p, ln p)` for each. The
+/// largest probability, when above 1/2, is taken as one minus the sum of the others and
+/// its logarithm as `ln_1p(−rest)`, so that near-certain states (low temperature) keep
+/// the rest's relative precision.
+fn ln_largest(p: &mut [f64], mut visit: impl FnMut(f64, f64)) {
+    let (k, &pk) = p
+        .iter()
+        .enumerate()
+        .max_by(|a, b| a.1.total_cmp(b.1))
+        .unwrap_or((0, &1.0));
+    let (pk, lk) = if pk > 0.5 {
+        let rest: f64 = p
+            .iter()
+            .enumerate()
+            .filter(|&(i, _)| i != k)
+            .map(|(_, q)| q)
+            .sum();
+        (1.0 - rest, (-rest).ln_1p())
+    } else {
+        (pk, pk.ln())
+    };
+    for (i, q) in p.iter_mut().enumerate() {
+        let (qq, l) = if i == k { (pk, lk) } else { (*q, q.ln()) };
+        visit(qq, l);
+        *q = l;
+    }
+}
+
+/// The exact (double-double) cluster probabilities of the reference values `r` in region
+/// `rt`: `2^-n W [1, r]` or `M↑ [1, r]`.
+fn reference_probabilities(basis: &Basis, rt: &RegionTerm, r: &[f64]) -> Vec<Dd> {
+    let size = 1usize << rt.n;
+    let mut p: Vec<Dd> = (0..size)
+        .map(|mask| {
+            if mask == 0 {
+                Dd::from_f64(1.0)
+            } else {
+                Dd::from_f64(r[rt.vars[mask] as usize])
+            }
+        })
+        .collect();
+    match basis {
+        Basis::Walsh => {
+            walsh(&mut p);
+            let scale = 1.0 / size as f64;
+            p.iter_mut().for_each(|q| *q = q.mul_f64(scale));
+        }
+        Basis::Flip { .. } => mobius_superset(&mut p),
+    }
+    p
+}
+
+/// The energy of `level` as a linear (plus, at the site level, quadratic) form in the
+/// coordinates: Walsh `E = −Σ J ξ_b − h Σ ξ_a`; flip, with `ξ_a = ε_a (1 − 2ζ_a)` and
+/// `ξ_ab = ε_a ε_b (1 − 2ζ_a − 2ζ_b + 4ζ_ab)`.
+fn energy_form(level: &Level, pattern: Option<&[f64]>) -> EnergyForm {
+    let n = level.variables.len();
+    let mut e = EnergyForm {
+        lin_bonds: vec![0.0; n],
+        lin_field: vec![0.0; n],
+        ..EnergyForm::default()
+    };
+    let site_of = |var: usize, k: usize| -> (usize, usize) {
+        let (a, _) = level.variables[var].site(k);
+        (a, level.site_vars[a])
+    };
+    for (bi, b) in level.bond_terms.iter().enumerate() {
+        if matches!(b, BondTerm::Factorised { .. }) {
+            e.quad_bonds.push(bi);
+        }
+        match (*b, pattern) {
+            (BondTerm::Correlated { var, j }, None) => e.lin_bonds[var] -= j,
+            (BondTerm::Factorised { a, b, j }, None) => e.quad.push((a, b, -j)),
+            (BondTerm::Correlated { var, j }, Some(eps)) => {
+                let (a, va) = site_of(var, 0);
+                let (b, vb) = site_of(var, 1);
+                let s = j * eps[a] * eps[b];
+                e.e0_bonds -= s;
+                e.lin_bonds[va] += 2.0 * s;
+                e.lin_bonds[vb] += 2.0 * s;
+                e.lin_bonds[var] -= 4.0 * s;
+            }
+            (BondTerm::Factorised { a: va, b: vb, j }, Some(eps)) => {
+                let a = basis_site_of(level, va);
+                let b = basis_site_of(level, vb);
+                let s = j * eps[a] * eps[b];
+                e.e0_bonds -= s;
+                e.lin_bonds[va] += 2.0 * s;
+                e.lin_bonds[vb] += 2.0 * s;
+                e.quad.push((va, vb, -4.0 * s));
+            }
+        }
+    }
+    for (a, &v) in level.site_vars.iter().enumerate() {
+        match pattern {
+            None => e.lin_field[v] -= 1.0,
+            Some(eps) => {
+                e.e0_field -= eps[a];
+                e.lin_field[v] += 2.0 * eps[a];
+            }
+        }
+    }
+    e
+}
+
+/// The basis site whose magnetisation is variable `v`.
+fn basis_site_of(level: &Level, v: usize) -> usize {
+    level.variables[v].site(0).0
 }
 
 /// A subset of the variables (a sector), with the reverse map.

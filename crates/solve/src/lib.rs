@@ -10,11 +10,20 @@
 //! unit cell, every reported observable per site.
 
 pub mod big;
+pub mod dd;
+pub mod disordered;
 pub mod equilibrium;
 pub mod error;
 pub mod extrapolate;
 pub mod functional;
+pub mod linalg;
+pub mod ordering;
+pub mod phase;
+pub mod qspace;
+pub mod search;
 pub mod state;
+pub mod subset;
+pub mod supercell;
 pub mod sweep;
 pub mod tc;
 pub mod thermo;
@@ -22,6 +31,20 @@ pub mod wht;
 
 pub use error::SolveError;
 pub use state::{equilibrium as solve_equilibrium, Branch, State};
-pub use sweep::sweep;
+pub use sweep::{sweep_level, LevelSweep, SweepOptions, SweepPoint};
 pub use tc::{critical_temperature, CriticalPoint, ModeKind, TcOptions};
 pub use thermo::{observables, Observables};
+
+/// A number for notes and messages: at most 6 significant digits, no trailing zeros.
+pub fn report_num(x: f64) -> String {
+    if x == 0.0 || !x.is_finite() {
+        return format!("{x}");
+    }
+    let digits = (6 - 1 - x.abs().log10().floor() as i32).max(0) as usize;
+    let s = format!("{x:.digits$}");
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}

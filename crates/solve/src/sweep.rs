@@ -1,30 +1,135 @@
-//! Thermodynamics along a path: for each field, the temperatures in the order given, each
-//! point warm-started from the one before (continuation), so that below Tc at h = 0 the
-//! ordered branch with m > 0 is followed.
+//! Thermodynamics along a path: for each field, the temperatures in the order given
+//! (ascending, descending or any), each point continuing the branch of the one before
+//! ([`crate::phase`]), on the cell that holds the level's ordering.
+//!
+//! The ordering comes from the level's own instability at h = 0 ([`crate::tc`]): its
+//! wavevector fixes the smallest diagonal supercell and the pattern whose amplitude is
+//! the order parameter. A point the engine cannot solve, or whose response functions do
+//! not exist (the Hessian is singular at a critical point), is reported as omitted with
+//! the reason; the path goes on from the last point solved.
 
-use rungs_lattice::Level;
+use rungs_lattice::{Lattice, Level};
 
 use crate::error::SolveError;
-use crate::state::equilibrium;
-use crate::thermo::{observables, Observables};
+use crate::functional::check_size;
+use crate::ordering::{Ordering, MAX_SUPERCELL_SITES};
+use crate::phase::{cell_name, PhaseCell, PhaseFollower, PhasePoint};
+use crate::tc::{critical_temperature, TcOptions};
 
-/// Observables of `level` at every (field, temperature), fields outermost. `tick` is
-/// called once per finished point (for progress reporting; the engine never prints).
-pub fn sweep(
+/// How to sweep.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct SweepOptions {
+    /// Follow the path on this supercell instead of the one the ordering chooses.
+    pub supercell: Option<[usize; 3]>,
+}
+
+/// One point of a sweep: solved, or left out with the reason.
+#[derive(Debug, Clone)]
+pub enum SweepPoint {
+    /// A solved point.
+    Solved(Box<PhasePoint>),
+    /// A point left out.
+    Omitted {
+        /// Temperature.
+        temperature: f64,
+        /// Field.
+        field: f64,
+        /// Why.
+        reason: String,
+    },
+}
+
+/// One level's sweep.
+#[derive(Debug, Clone)]
+pub struct LevelSweep {
+    /// Level name.
+    pub level: String,
+    /// Sites of the largest maximal cluster.
+    pub max_cluster_sites: usize,
+    /// The cell the path was followed on (cells along each axis).
+    pub cell: [usize; 3],
+    /// Sites of that cell.
+    pub cell_sites: usize,
+    /// The ordering whose pattern defines the order parameter, if the level has one.
+    pub ordering: Option<Ordering>,
+    /// The pattern on the cell's sites.
+    pub pattern: Vec<f64>,
+    /// The level's Tc at h = 0, when it has one.
+    pub tc: Option<f64>,
+    /// Points, fields outermost, temperatures in the order given.
+    pub points: Vec<SweepPoint>,
+    /// Cautions for the whole level.
+    pub notes: Vec<String>,
+}
+
+/// Sweep `level` (of `lattice`) over every (field, temperature); `tick` is called once
+/// per finished point (progress; the engine never prints).
+pub fn sweep_level(
+    lattice: &Lattice,
     level: &Level,
     temps: &[f64],
     fields: &[f64],
+    options: SweepOptions,
     tick: &(dyn Fn() + Sync),
-) -> Result<Vec<Observables>, SolveError> {
-    let mut out = Vec::with_capacity(temps.len() * fields.len());
+) -> Result<LevelSweep, SolveError> {
+    check_size(level)?;
+    if let Some(&t) = temps.iter().find(|t| !(t.is_finite() && **t > 0.0)) {
+        return Err(SolveError::BadTemperature { t });
+    }
+    let d = lattice.dimension();
+    let mut notes = Vec::new();
+    let cp = critical_temperature(lattice, level, TcOptions::default());
+    let (ordering, tc) = match cp {
+        Ok(cp) => {
+            notes.extend(cp.notes.iter().cloned());
+            (cp.ordering.clone(), cp.tc)
+        }
+        Err(e) => {
+            notes.push(format!(
+                "the level's ordering could not be determined ({e}); only uniform order is followed"
+            ));
+            (None, None)
+        }
+    };
+    let nb = lattice.sites_per_cell();
+    let n = match (options.supercell, &ordering) {
+        (Some(n), _) => n,
+        (None, Some(o)) if o.supercell_sites(nb) <= MAX_SUPERCELL_SITES => o.supercell(),
+        (None, Some(o)) => {
+            notes.push(format!(
+                "the ordered phase needs a {} cell (more than {MAX_SUPERCELL_SITES} sites): followed on the primitive cell, where that order cannot form",
+                cell_name(o.supercell(), d)
+            ));
+            [1, 1, 1]
+        }
+        (None, None) => [1, 1, 1],
+    };
+    let cell = PhaseCell::new(lattice, level, ordering.as_ref(), n)?;
+    notes.extend(cell.notes.iter().cloned());
+    let mut points = Vec::with_capacity(temps.len() * fields.len());
     for &h in fields {
-        let mut warm: Option<Vec<f64>> = None;
+        let mut follower = PhaseFollower::new(lattice, level, &cell, h, tc);
         for &t in temps {
-            let state = equilibrium(level, t, h, warm.as_deref())?;
-            out.push(observables(level, &state)?);
-            warm = Some(state.solution.x);
+            points.push(match follower.next(t) {
+                Ok(p) => SweepPoint::Solved(Box::new(p)),
+                Err(e) => SweepPoint::Omitted {
+                    temperature: t,
+                    field: h,
+                    reason: e.to_string(),
+                },
+            });
             tick();
         }
     }
-    Ok(out)
+    Ok(LevelSweep {
+        level: level.name.clone(),
+        max_cluster_sites: level.max_cluster_sites(),
+        cell: n,
+        cell_sites: cell.sites(),
+        pattern: cell.pattern.clone(),
+        ordering,
+        tc,
+        points,
+        notes,
+    })
 }

@@ -1,47 +1,38 @@
-//! The critical temperature of a level: where the paramagnetic solution stops being a
-//! minimum.
+//! The critical temperature of a level and the order that sets in there, at any
+//! wavevector and in any uniform field.
 //!
-//! At h = 0 the paramagnetic solution lives in the even sector and the Hessian is
-//! block-diagonal (even ⊕ odd). Tc is the temperature where the smallest eigenvalue
-//! λ(T) of the odd-sector Hessian reaches zero: it is bracketed by stepping down from
-//! just above the mean-field Tc (the spectral radius of the coupling matrix) and refined
-//! with Brent's method to a relative 10⁻⁹. The eigenvector says which order sets in; the
-//! critical amplitude of χ ≈ χ̄/(T − Tc) follows from it and dλ/dT:
-//! `χ̄ = (e·u)² / (N_b dλ/dT)`, e the site-magnetisation direction, u the unit mode.
+//! The disordered state ([`crate::disordered`]) is stable while the Hessian `H(q)` of
+//! [`crate::qspace`] is positive definite at every wavevector q. Tc is the highest
+//! temperature where `λ(T) = min_q λ_min(H(q))` reaches zero; the q there is the
+//! ordering wavevector and the eigenvector the ordering pattern. At h = 0 only the odd
+//! sector can go soft; in a field (the Néel line of an antiferromagnet) every variable
+//! counts.
+//!
+//! The minimum over q is taken over candidates: the points with every component 0 or 1/2
+//! (the zone centre and the zone-boundary points where Néel and layered orders live), and
+//! the maxima of the mean-field coupling `J(q)`. The step-down and Brent root of
+//! [`crate::search`] find Tc for the candidates; then the wavevector is refined locally
+//! at Tc, and the stability of every wavevector of a grid over the zone is checked just
+//! above Tc. A wavevector found unstable there joins the candidates and the search runs
+//! again, so a less obvious order is never missed by more than the grid's resolution.
+//!
+//! The critical amplitude of `χ ≈ χ̄ / (T − Tc)` is that of the ordering mode: with u
+//! the unit critical eigenvector, ŝ its site pattern (largest |·| = 1) and
+//! `λ(T) ≈ λ'(Tc)(T − Tc)`, `χ̄ = |ŝ†u|² / (Σ_a |ŝ_a|² λ'(Tc))` (for a ferromagnet the
+//! uniform susceptibility, for Néel order the staggered one).
 
 use std::cell::RefCell;
 use std::time::Instant;
 
-use argmin::core::{CostFunction, Executor};
-use argmin::solver::brent::BrentRoot;
-use nalgebra::{DMatrix, DVector};
+use nalgebra::Complex;
 use rungs_lattice::{symmetry, Lattice, Level};
 
-use crate::equilibrium::{minimise, product_state, NewtonOptions};
+use crate::disordered::Disordered;
 use crate::error::SolveError;
-use crate::functional::{Block, Functional};
-
-/// What kind of order the critical mode describes, from its site components.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum ModeKind {
-    /// Every site of the cell orders the same way (ferromagnetic-like).
-    Uniform,
-    /// Sites of the cell order with opposite signs (e.g. Néel order in a supercell).
-    Staggered,
-    /// The mode has no site component (order in multi-spin correlations only).
-    Hidden,
-}
-
-impl ModeKind {
-    /// A lower-case word for reports.
-    pub fn as_str(self) -> &'static str {
-        match self {
-            ModeKind::Uniform => "uniform",
-            ModeKind::Staggered => "staggered",
-            ModeKind::Hidden => "hidden",
-        }
-    }
-}
+pub use crate::ordering::ModeKind;
+use crate::ordering::Ordering;
+use crate::qspace::{coupling_top, is_real, LowestMode, Projection, QHessian, Wavevector};
+use crate::search::{refine, step_down, Bracket, Probe, StepRules};
 
 /// The critical point of one level.
 #[derive(Debug, Clone)]
@@ -50,17 +41,26 @@ pub struct CriticalPoint {
     pub level: String,
     /// Sites of the largest maximal cluster.
     pub max_cluster_sites: usize,
-    /// Critical temperature, `None` when the paramagnetic solution stays stable down to
-    /// the lowest temperature searched.
+    /// The uniform field the search ran in.
+    pub field: f64,
+    /// Critical temperature, `None` when the disordered state stays stable down to the
+    /// lowest temperature searched.
     pub tc: Option<f64>,
     /// Lowest temperature searched (where `tc` is `None`).
     pub searched_down_to: f64,
-    /// Site components of the critical mode, one per basis site, largest |·| = 1.
+    /// Real site components of the critical mode, one per basis site, largest |·| = 1
+    /// (`Re(u_a)` after the global phase that makes the largest one real).
     pub mode: Vec<f64>,
-    /// Classification of `mode`.
+    /// Classification of the mode's pattern.
     pub kind: ModeKind,
-    /// Critical amplitude χ̄ (per site) in χ ≈ χ̄ / (T − Tc) just above Tc.
+    /// The ordering: wavevector, site mode, supercell (None without a Tc).
+    pub ordering: Option<Ordering>,
+    /// Critical amplitude χ̄ (per site) in χ ≈ χ̄ / (T − Tc) just above Tc, of the
+    /// ordering mode.
     pub amplitude: Option<f64>,
+    /// Cautions about this result (degenerate wavevectors, possible first-order
+    /// transition above this Tc, incommensurate q approximated, ...).
+    pub notes: Vec<String>,
     /// Wall-clock seconds spent.
     pub seconds: f64,
 }
@@ -75,6 +75,8 @@ pub struct TcOptions {
     /// A temperature believed to lie above this level's Tc (e.g. the Tc of the next
     /// smaller cluster): where the search of a big level starts. `None`: mean field.
     pub start_below: Option<f64>,
+    /// The uniform field h.
+    pub field: f64,
 }
 
 impl Default for TcOptions {
@@ -83,312 +85,816 @@ impl Default for TcOptions {
             relative_tolerance: 1e-9,
             lowest_fraction: 0.02,
             start_below: None,
+            field: 0.0,
         }
     }
 }
 
-/// The mean-field (site-level) Tc bound used to start the search: the spectral radius of
-/// the coupling matrix `J_ab` (largest |eigenvalue|).
+/// The mean-field (site-level, h = 0) Tc: the largest eigenvalue of the coupling matrix
+/// `J(q)` over the zone, `max_q λ_max(J(q))`.
 pub fn mean_field_scale(lattice: &Lattice) -> f64 {
-    let m = lattice.coupling_matrix();
-    let n = m.len();
-    let mat = DMatrix::from_fn(n, n, |i, j| m[i][j]);
-    mat.symmetric_eigenvalues()
-        .iter()
-        .fold(0.0f64, |a, &b| a.max(b.abs()))
+    mean_field_maxima(lattice)
+        .first()
+        .map_or(0.0, |&(_, v)| v)
+        .max(0.0)
 }
 
-/// Paramagnetic solutions along T with warm starts, and the odd-sector spectrum there.
-struct Probe<'a> {
-    f: Functional<'a>,
-    even: Block,
-    odd: Block,
-    /// `D^{-1/2}` per variable on an orbit-reduced level (D = orbit sizes), so that the
-    /// odd Hessian `D^{-1/2} PᵀHP D^{-1/2}` has the eigenvalues of H on the symmetric
-    /// subspace; all ones on a plain level.
-    norm: Vec<f64>,
-    warm: RefCell<Vec<f64>>,
-    error: RefCell<Option<SolveError>>,
+/// Wavevectors with every component 0 or 1/2 on the lattice's dimensions.
+pub fn special_points(dimension: usize) -> Vec<Wavevector> {
+    (0..1usize << dimension)
+        .map(|bits| {
+            let mut q = [0.0; 3];
+            for (k, c) in q.iter_mut().enumerate().take(dimension) {
+                *c = if bits >> k & 1 == 1 { 0.5 } else { 0.0 };
+            }
+            q
+        })
+        .collect()
 }
 
-impl<'a> Probe<'a> {
-    fn new(level: &'a Level, norm: Vec<f64>) -> Probe<'a> {
-        let f = Functional::new(level, 1.0, 0.0);
-        let warm = product_state(&f, 0.0);
-        Probe {
-            even: Block::even(level),
-            odd: Block::odd(level),
-            norm,
-            warm: RefCell::new(warm),
-            f,
-            error: RefCell::new(None),
+/// A grid of `n` points per axis over the zone, one of each pair {q, −q}.
+pub fn zone_grid(dimension: usize, n: usize) -> Vec<Wavevector> {
+    let total = n.pow(dimension as u32);
+    let mut out: Vec<Wavevector> = Vec::new();
+    for code in 0..total {
+        let mut q = [0.0; 3];
+        let mut c = code;
+        for comp in q.iter_mut().take(dimension) {
+            *comp = (c % n) as f64 / n as f64;
+            c /= n;
+        }
+        let neg = canonical(&q.map(|v| -v), dimension);
+        if !out.iter().any(|p| same_q(p, &neg, dimension)) {
+            out.push(q);
         }
     }
+    out
+}
 
-    /// The odd-sector Hessian at the paramagnetic solution at T.
-    fn odd_hessian(&self, t: f64) -> Result<DMatrix<f64>, SolveError> {
-        let f = self.f.at(t, 0.0);
-        let start = self.warm.borrow().clone();
-        let start = if f.feasible(&start) {
-            start
+/// q with components reduced to [0, 1).
+fn canonical(q: &Wavevector, dimension: usize) -> Wavevector {
+    let mut out = [0.0; 3];
+    for k in 0..dimension {
+        let mut c = q[k].rem_euclid(1.0);
+        if c > 1.0 - 1e-12 {
+            c = 0.0;
+        }
+        out[k] = c;
+    }
+    out
+}
+
+/// Whether p and q are the same point of the zone, up to q → −q.
+fn same_q(p: &Wavevector, q: &Wavevector, dimension: usize) -> bool {
+    let eq = |a: &Wavevector, b: &Wavevector| {
+        (0..dimension).all(|k| {
+            let d = (a[k] - b[k]).rem_euclid(1.0);
+            d < 1e-9 || d > 1.0 - 1e-9
+        })
+    };
+    eq(p, q) || eq(p, &q.map(|v| -v))
+}
+
+/// The maxima of the mean-field coupling's top eigenvalue, best first: the points of a
+/// grid that beat their neighbours, refined by a pattern search, with every special
+/// point as good as the best (within 10⁻⁹) put first.
+pub fn mean_field_maxima(lattice: &Lattice) -> Vec<(Wavevector, f64)> {
+    let d = lattice.dimension();
+    let n = match d {
+        1 => 48,
+        2 => 24,
+        _ => 12,
+    };
+    let grid = full_grid(d, n);
+    let values: Vec<f64> = grid.iter().map(|q| coupling_top(lattice, q)).collect();
+    let mut found: Vec<(Wavevector, f64)> = Vec::new();
+    let best = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let index = |code: &[usize]| -> usize { code.iter().rev().fold(0, |acc, &c| acc * n + c) };
+    for (i, q) in grid.iter().enumerate() {
+        if values[i] < best - 0.05 * best.abs().max(1e-12) {
+            continue;
+        }
+        // A local maximum of the grid (ties allowed): no neighbour strictly higher.
+        let mut code = [0usize; 3];
+        let mut c = i;
+        for k in code.iter_mut().take(d) {
+            *k = c % n;
+            c /= n;
+        }
+        let higher = (0..d).any(|k| {
+            [1, n - 1].iter().any(|&step| {
+                let mut nb = code;
+                nb[k] = (nb[k] + step) % n;
+                values[index(&nb[..d])] > values[i] + 1e-12 * values[i].abs().max(1.0)
+            })
+        });
+        if higher {
+            continue;
+        }
+        let (qr, v) = pattern_search(q, d, 1.0 / n as f64, |p| -coupling_top(lattice, p));
+        let v = -v;
+        let qr = canonical(&qr, d);
+        if !found.iter().any(|(p, _)| same_q(p, &qr, d)) {
+            found.push((qr, v));
+        }
+        if found.len() >= 24 {
+            break;
+        }
+    }
+    let top = found.iter().map(|f| f.1).fold(best, f64::max);
+    let mut out: Vec<(Wavevector, f64)> = special_points(d)
+        .into_iter()
+        .map(|q| (q, coupling_top(lattice, &q)))
+        .filter(|&(_, v)| v >= top - 1e-9 * top.abs().max(1.0))
+        .collect();
+    found.sort_by(|a, b| b.1.total_cmp(&a.1));
+    for f in found {
+        if !out.iter().any(|(p, _)| same_q(p, &f.0, d)) {
+            out.push(f);
+        }
+    }
+    out.truncate(6);
+    out
+}
+
+fn full_grid(d: usize, n: usize) -> Vec<Wavevector> {
+    (0..n.pow(d as u32))
+        .map(|code| {
+            let mut q = [0.0; 3];
+            let mut c = code;
+            for comp in q.iter_mut().take(d) {
+                *comp = (c % n) as f64 / n as f64;
+                c /= n;
+            }
+            q
+        })
+        .collect()
+}
+
+/// Minimise `f` over q from `q0` by a compass search: try ± steps along the axes and the
+/// face diagonals, move while it improves, halve the step down to 10⁻⁶.
+pub fn pattern_search(
+    q0: &Wavevector,
+    d: usize,
+    step: f64,
+    mut f: impl FnMut(&Wavevector) -> f64,
+) -> (Wavevector, f64) {
+    let mut dirs: Vec<Wavevector> = Vec::new();
+    for i in 0..d {
+        let mut e = [0.0; 3];
+        e[i] = 1.0;
+        dirs.push(e);
+        for j in i + 1..d {
+            let mut p = e;
+            p[j] = 1.0;
+            dirs.push(p);
+            let mut m = e;
+            m[j] = -1.0;
+            dirs.push(m);
+        }
+    }
+    let mut q = *q0;
+    let mut best = f(&q);
+    let mut s = step;
+    while s > 1e-6 {
+        let mut moved = false;
+        for dir in &dirs {
+            for sign in [1.0, -1.0] {
+                let mut p = q;
+                for k in 0..d {
+                    p[k] += sign * s * dir[k];
+                }
+                let v = f(&p);
+                if v < best - 1e-13 * best.abs().max(1.0) {
+                    best = v;
+                    q = p;
+                    moved = true;
+                }
+            }
+        }
+        if !moved {
+            s *= 0.5;
+        }
+    }
+    (q, best)
+}
+
+/// A wavevector the search watches, with the symmetric subspace its instability is
+/// first sought in (`None`: the whole block).
+struct Candidate {
+    q: Wavevector,
+    projection: Option<Projection>,
+}
+
+impl Candidate {
+    fn value(&self, qh: &QHessian) -> f64 {
+        match &self.projection {
+            Some(p) => qh.projected_lowest_value(&self.q, p),
+            None => qh.lowest_value(&self.q),
+        }
+    }
+    fn mode(&self, qh: &QHessian) -> LowestMode {
+        match &self.projection {
+            Some(p) => qh.projected_lowest(&self.q, p),
+            None => qh.lowest(&self.q),
+        }
+    }
+}
+
+/// The stability probe of the dense path: the smallest eigenvalue of `H(q)` over the
+/// candidate wavevectors at the disordered state.
+struct QProbe<'a, 'l> {
+    lattice: &'l Lattice,
+    follower: &'l Disordered<'a>,
+    candidates: RefCell<Vec<Candidate>>,
+    name: String,
+    /// The last temperature probed, its noise scale and the candidate that was lowest.
+    last: RefCell<(f64, f64, usize)>,
+}
+
+impl QProbe<'_, '_> {
+    fn evaluate(&self, t: f64) -> Result<(f64, usize, f64), SolveError> {
+        let (f, x) = self.follower.solve(t)?;
+        let qh = QHessian::scaled(&f, self.lattice, &x, self.follower.sector(), false)
+            .ok_or_else(|| infeasible(&self.name, t))?;
+        let _ = &f;
+        let noise = SCALED_NOISE;
+        let (mut best, mut arg) = (f64::INFINITY, 0);
+        for (i, c) in self.candidates.borrow_mut().iter_mut().enumerate() {
+            let mut v = c.value(&qh);
+            // The symmetric subspace is an accelerator: when the full H(q) is not
+            // positive definite although the subspace says stable, a less symmetric mode
+            // is the soft one, and this candidate is watched on the full block from now.
+            if c.projection.is_some() && v > 0.0 && !qh.is_positive_definite(&c.q) {
+                c.projection = None;
+                v = c.value(&qh);
+            }
+            // Earlier candidates (points of high symmetry) win ties.
+            if v < best - TIE.max(1e-15 * v.abs()) {
+                best = v;
+                arg = i;
+            }
+        }
+        Ok((best, arg, noise))
+    }
+}
+
+impl Probe for QProbe<'_, '_> {
+    fn value(&self, t: f64) -> Result<f64, SolveError> {
+        let (v, arg, noise) = self.evaluate(t)?;
+        *self.last.borrow_mut() = (t, noise, arg);
+        Ok(v)
+    }
+    fn noise(&self, t: f64) -> f64 {
+        let last = *self.last.borrow();
+        if last.0 == t {
+            last.1
         } else {
-            product_state(&f, 0.0)
-        };
-        let sol = minimise(&f, start, &self.even, NewtonOptions::default())?;
-        let mut h = f
-            .hessian_block(&sol.x, &self.odd.vars, &self.odd.pos)
-            .ok_or_else(|| SolveError::TcSearch {
-                level: self.f.level().name.clone(),
-                detail: format!("paramagnetic solution at T = {t} left the feasible region"),
-            })?;
-        for (j, &vj) in self.odd.vars.iter().enumerate() {
-            for (i, &vi) in self.odd.vars.iter().enumerate() {
-                h[(i, j)] *= self.norm[vi] * self.norm[vj];
-            }
+            0.0
         }
-        *self.warm.borrow_mut() = sol.x;
-        Ok(h)
     }
-
-    /// Smallest odd-sector eigenvalue and its unit eigenvector.
-    fn lowest(&self, t: f64) -> Result<(f64, DVector<f64>), SolveError> {
-        let h = self.odd_hessian(t)?;
-        let eig = h.symmetric_eigen();
-        let (k, &lam) = eig
-            .eigenvalues
-            .iter()
-            .enumerate()
-            .min_by(|a, b| a.1.total_cmp(b.1))
-            .ok_or_else(|| SolveError::TcSearch {
-                level: self.f.level().name.clone(),
-                detail: "empty odd sector".into(),
-            })?;
-        Ok((lam, eig.eigenvectors.column(k).into_owned()))
+    fn name(&self) -> &str {
+        &self.name
     }
 }
 
-/// The root finder's view of a probe: T ↦ λ(T).
-struct Lowest<'p, 'a>(&'p Probe<'a>);
+/// Rounding scale of the eigenvalues of the scaled `H(q)` (entries O(1)): below it the
+/// sign of the smallest one cannot be trusted.
+const SCALED_NOISE: f64 = 1e-12;
 
-impl CostFunction for Lowest<'_, '_> {
-    type Param = f64;
-    type Output = f64;
-    fn cost(&self, t: &f64) -> Result<f64, argmin::core::Error> {
-        match self.0.lowest(*t) {
-            Ok((lam, _)) => Ok(lam),
-            Err(e) => {
-                let msg = e.to_string();
-                *self.0.error.borrow_mut() = Some(e);
-                Err(argmin::core::Error::msg(msg))
-            }
-        }
+/// Differences of scaled eigenvalues below this are ties.
+const TIE: f64 = 1e-9;
+
+fn infeasible(level: &str, t: f64) -> SolveError {
+    SolveError::TcSearch {
+        level: level.to_string(),
+        detail: format!("the disordered state at T = {t} left the feasible region"),
     }
 }
 
-/// Find the critical temperature of `level` (built from `lattice`) at h = 0.
-///
-/// The search first runs on the orbit-reduced level (point-group symmetric states and
-/// modes only: small and fast), then checks with one Cholesky factorisation that the
-/// full odd sector is still positive definite just above the Tc found, i.e. that no
-/// less symmetric mode went critical first. If one did, or the symmetric sector never
-/// orders, the search is repeated on the unreduced variables.
+/// Find the critical temperature of `level` (built from `lattice`) in the field
+/// `options.field`, and the order that sets in.
 pub fn critical_temperature(
     lattice: &Lattice,
     level: &Level,
     options: TcOptions,
 ) -> Result<CriticalPoint, SolveError> {
     if crate::functional::check_size(level).is_err() {
-        return crate::big::critical_temperature_big(lattice, level, options, options.start_below);
+        return big_level(lattice, level, options);
     }
     let start = Instant::now();
+    let d = lattice.dimension();
+    let h = options.field;
     let scale = mean_field_scale(lattice).max(1e-12);
+    let follower = Disordered::new(lattice, level, h);
     let ops = symmetry::level_group(level, &symmetry::point_group(lattice));
-    if ops.len() > 1 {
-        let orbit_of = symmetry::variable_orbits(level, &ops);
-        let reduced = level.reduced(&orbit_of);
-        let mut size = vec![0usize; reduced.variables.len()];
-        for &o in &orbit_of {
-            size[o] += 1;
-        }
-        let norm: Vec<f64> = size.iter().map(|&d| 1.0 / (d as f64).sqrt()).collect();
-        // Any failure of the symmetric search (no Tc, or a paramagnet that cannot be
-        // followed because a less symmetric order sets in first) defers to the full one.
-        if let Ok((sym @ CriticalPoint { tc: Some(tc), .. }, y)) =
-            search(scale, &reduced, norm, options)
-        {
-            let t_check = tc * (1.0 + 1e-6);
-            let x: Vec<f64> = orbit_of.iter().map(|&o| y[o]).collect();
-            let f = Functional::new(level, t_check, 0.0);
-            // Re-solve the paramagnet at t_check so that the check is exact there.
-            let para = minimise(&f, x, &Block::even(level), NewtonOptions::default());
-            if para.is_ok_and(|p| crate::state::odd_sector_stable(&f, &p.x)) {
-                return Ok(CriticalPoint {
-                    seconds: start.elapsed().as_secs_f64(),
-                    ..sym
-                });
-            }
+    let sector = follower.sector();
+    let watch = |q: Wavevector| Candidate {
+        q,
+        projection: Some(Projection::new(level, &ops, &q, &sector)),
+    };
+    let mut qs: Vec<Wavevector> = special_points(d);
+    for (q, _) in mean_field_maxima(lattice) {
+        if !qs.iter().any(|p| same_q(p, &q, d)) {
+            qs.push(q);
         }
     }
-    let (cp, _) = search(scale, level, vec![1.0; level.variables.len()], options)?;
-    Ok(CriticalPoint {
-        seconds: start.elapsed().as_secs_f64(),
-        ..cp
+    let candidates: Vec<Candidate> = qs.into_iter().map(watch).collect();
+    let probe = QProbe {
+        lattice,
+        follower: &follower,
+        candidates: RefCell::new(candidates),
+        name: level.name.clone(),
+        last: RefCell::new((f64::NAN, 0.0, 0)),
+    };
+    let t_min = scale * options.lowest_fraction;
+    let rules = StepRules::default();
+    let verify = irreducible(&ops, d, zone_grid(d, verification_grid(d)));
+    let mut t_start = options.start_below.unwrap_or(scale * 1.02);
+    let mut notes = Vec::new();
+    for _round in 0..4 {
+        let bracket = step_down(&probe, t_start, t_min, rules)?;
+        let (lo, hi) = match bracket {
+            Bracket::Found { lo, hi } => (lo, hi),
+            Bracket::Stable { down_to } | Bracket::Noise { at: down_to } => {
+                return Ok(no_transition(
+                    level,
+                    h,
+                    down_to,
+                    matches!(bracket, Bracket::Noise { .. }),
+                    start,
+                ));
+            }
+        };
+        let tc = refine(&probe, lo, hi, options.relative_tolerance)?;
+        // Refine the wavevector at Tc; check every grid wavevector just above Tc.
+        let (f, x) = follower.solve(tc)?;
+        let qh = QHessian::scaled(&f, lattice, &x, follower.sector(), false)
+            .ok_or_else(|| infeasible(&level.name, tc))?;
+        let (_, arg) =
+            {
+                let c = probe.candidates.borrow();
+                let tie = TIE;
+                c.iter().enumerate().map(|(i, c)| (c.value(&qh), i)).fold(
+                    (f64::INFINITY, 0),
+                    |a, b| if b.0 < a.0 - tie { b } else { a },
+                )
+            };
+        let q_star = probe.candidates.borrow()[arg].q;
+        let lam_star = qh.lowest_value(&q_star);
+        let tol = TIE;
+        // A local minimum over q is kept as it is (points of high symmetry stay exact);
+        // otherwise the compass search moves it.
+        let step = 1.0 / 64.0;
+        let neighbour_lower = directions(d).iter().any(|dir| {
+            [1.0, -1.0].iter().any(|sgn| {
+                let mut p = q_star;
+                for k in 0..d {
+                    p[k] += sgn * step * dir[k];
+                }
+                !qh.is_positive_definite_above(&p, lam_star - tol)
+            })
+        });
+        let (q_ref, lam_ref) =
+            if neighbour_lower || !is_real(&q_star) && !exact_fraction(&q_star, d) {
+                pattern_search(&q_star, d, step, |q| qh.lowest_value(q))
+            } else {
+                (q_star, lam_star)
+            };
+        let mut new_q: Vec<Candidate> = Vec::new();
+        if lam_ref < lam_star - tol {
+            new_q.push(watch(canonical(&q_ref, d)));
+        }
+        // The symmetric subspace may have missed a less symmetric mode at q*.
+        if lam_star < probe.candidates.borrow()[arg].value(&qh) - tol {
+            new_q.push(Candidate {
+                q: q_star,
+                projection: None,
+            });
+        }
+        let t_check = tc * (1.0 + 1e-6);
+        let (fc, xc) = follower.solve(t_check)?;
+        let qc = QHessian::scaled(&fc, lattice, &xc, follower.sector(), false)
+            .ok_or_else(|| infeasible(&level.name, t_check))?;
+        for q in &verify {
+            if !qc.is_positive_definite(q) {
+                let (qr, _) = pattern_search(q, d, 0.5 / verification_grid(d) as f64, |p| {
+                    qc.lowest_value(p)
+                });
+                new_q.push(Candidate {
+                    q: canonical(&qr, d),
+                    projection: None,
+                });
+                break;
+            }
+        }
+        if new_q.is_empty() {
+            let chosen = &probe.candidates.borrow()[arg];
+            let cp = finish(lattice, level, &follower, tc, chosen, &mut notes, start)?;
+            return Ok(cp);
+        }
+        {
+            let mut c = probe.candidates.borrow_mut();
+            for q in new_q {
+                match c
+                    .iter_mut()
+                    .find(|p| same_q(&p.q, &q.q, d) && p.projection.is_some())
+                {
+                    Some(p) if q.projection.is_none() => p.projection = None,
+                    Some(_) => {}
+                    None => c.push(q),
+                }
+            }
+        }
+        // A wavevector more unstable than the candidates: Tc is higher; search again
+        // from above.
+        t_start = hi.max(tc) * 1.05;
+    }
+    Err(SolveError::TcSearch {
+        level: level.name.clone(),
+        detail: "the ordering wavevector did not settle after four refinements".into(),
     })
 }
 
-/// The search proper on one (plain or orbit-reduced) level; also returns the
-/// paramagnetic solution at the last temperature probed (at Tc when one was found).
-fn search(
-    scale: f64,
-    level: &Level,
-    norm: Vec<f64>,
-    options: TcOptions,
-) -> Result<(CriticalPoint, Vec<f64>), SolveError> {
-    let start = Instant::now();
-    let probe = Probe::new(level, norm);
-    let name = level.name.clone();
-    let mut t_hi = scale * 1.02;
-    let (mut lam_hi, _) = probe.lowest(t_hi)?;
-    let mut grow = 0;
-    while lam_hi <= 0.0 && grow < 20 {
-        t_hi *= 1.5;
-        lam_hi = probe.lowest(t_hi)?.0;
-        grow += 1;
-    }
-    if lam_hi <= 0.0 {
-        return Err(SolveError::TcSearch {
-            level: name,
-            detail: format!("the paramagnetic solution is unstable even at T = {t_hi}"),
-        });
-    }
-    let t_min = scale * options.lowest_fraction;
-    let mut t_lo = t_hi;
-    let mut found = false;
-    // Step down, guided by the secant of λ(T) (nearly linear near Tc): aim a little
-    // below the predicted zero, never more than halving T or less than a 2% step.
-    let mut prev: Option<(f64, f64)> = None;
-    let mut lam_cur = lam_hi;
-    while t_lo > t_min {
-        let mut t_next = t_lo * 0.9;
-        if let Some((tp, lp)) = prev {
-            let slope = (lp - lam_cur) / (tp - t_lo);
-            if slope > 0.0 {
-                let zero = t_lo - lam_cur / slope;
-                t_next = (zero - 0.01 * t_lo).clamp(0.5 * t_lo, 0.98 * t_lo);
-            }
-        }
-        let t_next = t_next.max(t_min);
-        let (lam, noise) = match probe.odd_hessian(t_next) {
-            Ok(h) => {
-                let noise = probe
-                    .f
-                    .at(t_next, 0.0)
-                    .hessian_rounding(&probe.warm.borrow());
-                match h.symmetric_eigenvalues().iter().copied().reduce(f64::min) {
-                    Some(l) => (l, noise),
-                    None => break,
-                }
-            }
-            Err(e) => {
-                return Err(SolveError::TcSearch {
-                    level: level.name.clone(),
-                    detail: format!(
-                        "stable down to T = {t_lo}, but the paramagnetic solution could not be followed below it ({e}); no Tc can be claimed either way"
-                    ),
-                })
-            }
-        };
-        // An eigenvalue within rounding of zero (e.g. the chain, where it vanishes only
-        // as e^{-2J/T}) cannot say which side of Tc we are on: stop searching there.
-        if lam.abs() < noise {
-            t_lo = t_next;
-            break;
-        }
-        if lam <= 0.0 {
-            found = true;
-            t_lo = t_next;
-            break;
-        }
-        prev = Some((t_lo, lam_cur));
-        lam_cur = lam;
-        t_hi = t_next;
-        t_lo = t_next;
-        if t_next <= t_min {
-            break;
+/// One wavevector of each star among `grid` (the others have the same spectrum).
+fn irreducible(ops: &[symmetry::SiteMap], d: usize, grid: Vec<Wavevector>) -> Vec<Wavevector> {
+    let mut out: Vec<Wavevector> = Vec::new();
+    for q in grid {
+        let star = star_under(ops, &q, d);
+        if !out.iter().any(|p| star.iter().any(|s| same_q(p, s, d))) {
+            out.push(q);
         }
     }
-    let nb = level.sites_per_cell;
-    if !found {
-        return Ok((
-            CriticalPoint {
-                level: name,
-                max_cluster_sites: level.max_cluster_sites(),
-                tc: None,
-                searched_down_to: t_lo,
-                mode: vec![0.0; nb],
-                kind: ModeKind::Hidden,
-                amplitude: None,
-                seconds: start.elapsed().as_secs_f64(),
-            },
-            probe.warm.borrow().clone(),
-        ));
-    }
-    // Warm start from the upper end for the root finder.
-    probe.odd_hessian(t_hi)?;
-    let solver = BrentRoot::new(t_lo, t_hi, options.relative_tolerance * t_hi);
-    let result = Executor::new(Lowest(&probe), solver)
-        .configure(|s| s.max_iters(200))
-        .run();
-    let tc = match result {
-        Ok(r) => r.state.best_param.unwrap_or(0.5 * (t_lo + t_hi)),
-        Err(e) => {
-            return Err(probe
-                .error
-                .borrow_mut()
-                .take()
-                .unwrap_or(SolveError::TcSearch {
-                    level: name,
-                    detail: e.to_string(),
-                }));
-        }
-    };
-    // The critical mode and the amplitude χ̄ = (e·u)² / (N_b dλ/dT).
-    let (_, u) = probe.lowest(tc)?;
-    let delta = 1e-4 * tc;
-    let rayleigh = |t: f64| -> Result<f64, SolveError> {
-        let h = probe.odd_hessian(t)?;
-        Ok(u.dot(&(&h * &u)))
-    };
-    let slope = (rayleigh(tc + delta)? - rayleigh(tc - delta)?) / (2.0 * delta);
-    // Back at Tc (the paramagnet returned is the one there). Site components of the
-    // mode in the full variables: u_k D_k^{-1/2} for the orbit k of each site's
-    // variable (plain level: D = 1).
-    probe.odd_hessian(tc)?;
-    let site_components: Vec<f64> = level
-        .site_vars
-        .iter()
-        .map(|&v| u[probe.odd.pos[v]] * probe.norm[v])
-        .collect();
-    let e_dot_u: f64 = site_components.iter().sum();
-    let amplitude = (slope > 0.0).then(|| e_dot_u * e_dot_u / (nb as f64 * slope));
-    let (mode, kind) = classify(&site_components);
-    let warm = probe.warm.borrow().clone();
-    Ok((
-        CriticalPoint {
-            level: name,
-            max_cluster_sites: level.max_cluster_sites(),
-            tc: Some(tc),
-            searched_down_to: t_lo,
-            mode,
-            kind,
-            amplitude,
-            seconds: start.elapsed().as_secs_f64(),
-        },
-        warm,
-    ))
+    out
 }
 
-/// Normalise site components (largest |·| = 1, first non-zero positive) and classify.
+/// Whether every component is a fraction with a small denominator.
+fn exact_fraction(q: &Wavevector, d: usize) -> bool {
+    q[..d]
+        .iter()
+        .all(|&c| crate::ordering::best_fraction(c.rem_euclid(1.0)).2 < 1e-9)
+}
+
+/// A level too large for the dense engine: the big-level path searches point-group
+/// symmetric (uniform) order only, at h = 0. When the lattice's mean-field order is a
+/// ±1 pattern at a wavevector with components 0 or 1/2 (Néel order, layered orders,
+/// a staggered cell), the level is searched as its gauge-equivalent lattice
+/// (`s_i → ε_i s_i`, couplings `J_ij ε_i ε_j`), where that order is uniform: exact at
+/// h = 0, and as cheap as the ferromagnet.
+fn big_level(
+    lattice: &Lattice,
+    level: &Level,
+    options: TcOptions,
+) -> Result<CriticalPoint, SolveError> {
+    let d = lattice.dimension();
+    if options.field != 0.0 {
+        let mut cp = crate::big::critical_temperature_big(lattice, level, options, None)?;
+        cp.tc = None;
+        cp.ordering = None;
+        cp.amplitude = None;
+        cp.field = options.field;
+        cp.notes.push(
+            "levels too large for the dense engine are searched at h = 0 only: no Tc in a field is given"
+                .into(),
+        );
+        return Ok(cp);
+    }
+    let Some((q, v)) = mean_field_maxima(lattice).first().map(|&(q, _)| {
+        let m = crate::qspace::coupling_matrix(lattice, &q);
+        let eig = m.symmetric_eigen();
+        let k = (0..eig.eigenvalues.len())
+            .max_by(|&a, &b| eig.eigenvalues[a].total_cmp(&eig.eigenvalues[b]))
+            .unwrap_or(0);
+        (q, eig.eigenvectors.column(k).into_owned())
+    }) else {
+        return crate::big::critical_temperature_big(lattice, level, options, options.start_below);
+    };
+    let ordering = Ordering::new(d, q, v.iter().copied().collect());
+    let pattern = ordering.pattern();
+    let half = (0..d).all(|k| ordering.fractions[k].1 <= 2) && ordering.exact;
+    let unit = pattern.iter().all(|p| (p.abs() - 1.0).abs() < 1e-6);
+    if ordering.kind() == ModeKind::Uniform || !(half && unit) {
+        let mut cp =
+            crate::big::critical_temperature_big(lattice, level, options, options.start_below)?;
+        if ordering.kind() != ModeKind::Uniform {
+            cp.notes.push(format!(
+                "levels too large for the dense engine search uniform order only; this lattice's mean-field order is at q = ({}), which cannot be searched at this size: the result says nothing about it",
+                fmt_vec(&ordering.wavevector, d)
+            ));
+        }
+        return Ok(cp);
+    }
+    // ε per site of the cell and per cell parity: J'_b = J_b ε_from ε_to (−1)^{2q·cell}.
+    let signs: Vec<f64> = ordering.site_mode.iter().map(|c| c.re.signum()).collect();
+    let factors: Vec<f64> = lattice
+        .bonds()
+        .iter()
+        .map(|b| {
+            let parity: i64 = (0..d)
+                .map(|k| (2.0 * ordering.wavevector[k]).round() as i64 * b.cell[k] as i64)
+                .sum();
+            let s = signs[b.from] * signs[b.to];
+            if parity.rem_euclid(2) == 0 {
+                s
+            } else {
+                -s
+            }
+        })
+        .collect();
+    let gauged = lattice.with_scaled_couplings(&factors);
+    let mut glevel = level.clone();
+    for (bt, f) in glevel.bond_terms.iter_mut().zip(&factors) {
+        match bt {
+            rungs_lattice::BondTerm::Correlated { j, .. }
+            | rungs_lattice::BondTerm::Factorised { j, .. } => *j *= f,
+        }
+    }
+    let mut cp =
+        crate::big::critical_temperature_big(&gauged, &glevel, options, options.start_below)?;
+    if cp.tc.is_some() {
+        let kind = ordering.kind();
+        cp.mode = ordering.site_mode.iter().map(|c| c.re).collect();
+        cp.kind = kind;
+        cp.ordering = Some(ordering);
+    }
+    cp.notes.push(
+        "solved as its gauge-equivalent lattice (s_i → ε_i s_i with the ordering's signs), where this order is uniform: exact at h = 0"
+            .into(),
+    );
+    Ok(cp)
+}
+
+/// Points per axis of the verification grid.
+fn verification_grid(d: usize) -> usize {
+    match d {
+        1 => 32,
+        2 => 8,
+        _ => 6,
+    }
+}
+
+fn no_transition(
+    level: &Level,
+    h: f64,
+    down_to: f64,
+    noise: bool,
+    start: Instant,
+) -> CriticalPoint {
+    let mut notes = Vec::new();
+    if noise {
+        notes.push(format!(
+            "the stability of the disordered state fell within rounding at T = {}: no transition can be resolved below it",
+            crate::report_num(down_to)
+        ));
+    }
+    CriticalPoint {
+        level: level.name.clone(),
+        max_cluster_sites: level.max_cluster_sites(),
+        field: h,
+        tc: None,
+        searched_down_to: down_to,
+        mode: vec![0.0; level.sites_per_cell],
+        kind: ModeKind::Hidden,
+        ordering: None,
+        amplitude: None,
+        notes,
+        seconds: start.elapsed().as_secs_f64(),
+    }
+}
+
+/// The ordering, amplitude and notes at a found Tc and wavevector.
+#[allow(clippy::too_many_arguments)]
+fn finish(
+    lattice: &Lattice,
+    level: &Level,
+    follower: &Disordered,
+    tc: f64,
+    chosen: &Candidate,
+    notes: &mut Vec<String>,
+    start: Instant,
+) -> Result<CriticalPoint, SolveError> {
+    let d = lattice.dimension();
+    let (f, x) = follower.solve(tc)?;
+    let sector = follower.sector();
+    let qh = QHessian::scaled(&f, lattice, &x, sector.clone(), false)
+        .ok_or_else(|| infeasible(&level.name, tc))?;
+    let q = chosen.q;
+    let mode = chosen.mode(&qh);
+    let u = &mode.vector;
+    // The mode of H(q) itself is D^{-1/2} times that of the scaled matrix.
+    let rs = qh.row_scale();
+    let site_u: Vec<Complex<f64>> = level
+        .site_vars
+        .iter()
+        .map(|&v| match sector.pos[v] {
+            usize::MAX => Complex::new(0.0, 0.0),
+            p => u[p] * rs[p],
+        })
+        .collect();
+    let ordering = Ordering::new(d, q, site_u.clone());
+    // λ'(Tc) from the Rayleigh quotient of the critical vector at Tc ± δ; with
+    // ẽ = D^{-1/2} e, χ = ẽ† H̃⁻¹ ẽ ≈ |ẽ†ũ|² / λ̃, and ẽ†ũ = e†u for u = D^{-1/2} ũ.
+    let delta = 1e-3 * tc;
+    let rayleigh = |t: f64| -> Result<f64, SolveError> {
+        let (f, x) = follower.solve(t)?;
+        let qh = QHessian::scaled(&f, lattice, &x, follower.sector(), false)
+            .ok_or_else(|| infeasible(&level.name, t))?;
+        let m = qh.matrix(&q);
+        Ok((u.adjoint() * m * u)[(0, 0)].re)
+    };
+    // Five-point stencil: error O(δ⁴).
+    let slope = (8.0 * (rayleigh(tc + delta)? - rayleigh(tc - delta)?)
+        - (rayleigh(tc + 2.0 * delta)? - rayleigh(tc - 2.0 * delta)?))
+        / (12.0 * delta);
+    follower.solve(tc)?;
+    let s = &ordering.site_mode;
+    let norm: f64 = s.iter().map(|c| c.norm_sqr()).sum();
+    let proj: Complex<f64> = s.iter().zip(&site_u).map(|(a, b)| a.conj() * b).sum();
+    let amplitude = (slope > 0.0 && norm > 0.0).then(|| proj.norm_sqr() / (norm * slope));
+    // Degeneracy: the instability as low over the whole zone, or along a line through q.
+    let mut ordering = ordering;
+    let zone_flat = d > 0
+        && zone_grid(d, 4)
+            .iter()
+            .all(|p| (qh.lowest_value(p) - mode.value).abs() < 1e-7);
+    if zone_flat {
+        notes.push(
+            "the instability is degenerate over the whole zone (a flat band: every wavevector goes soft at this Tc, as for strongly frustrated couplings); the wavevector and pattern reported are one choice among many, and the ordered phase, if any, is not determined by this level".to_string(),
+        );
+    }
+    for dir in directions(d).into_iter().filter(|_| !zone_flat) {
+        let flat = [0.05, 0.1, 0.2].iter().all(|&s| {
+            let mut p = q;
+            for k in 0..d {
+                p[k] += s * dir[k];
+            }
+            (qh.lowest_value(&p) - mode.value).abs() < 1e-7
+        });
+        if flat {
+            ordering.flat_direction = Some(dir);
+            notes.push(format!(
+                "the instability is degenerate along the line q + s·({}) through the ordering wavevector: every q on it goes soft at this Tc; the commensurate point q = ({}) is reported",
+                fmt_vec(&dir, d),
+                fmt_vec(&ordering.wavevector, d)
+            ));
+            break;
+        }
+    }
+    if !ordering.exact {
+        notes.push(format!(
+            "incommensurate ordering wavevector ({}), approximated by ({}) for the supercell",
+            fmt_vec(&q, d),
+            fmt_vec(&ordering.rational_wavevector(), d)
+        ));
+    }
+    if ordering.supercell_sites(level.sites_per_cell) > crate::ordering::MAX_SUPERCELL_SITES {
+        notes.push(format!(
+            "the commensurate supercell {} holds more than {} sites: the ordered phase cannot be followed on it",
+            fmt_cell(&ordering.supercell(), d),
+            crate::ordering::MAX_SUPERCELL_SITES
+        ));
+    }
+    let ops = symmetry::level_group(level, &symmetry::point_group(lattice));
+    let star = star_under(&ops, &ordering.rational_wavevector(), d);
+    if star.len() >= 3 || (follower.field() != 0.0 && has_cubic_invariant(&star, d)) {
+        notes.push(format!(
+            "this Tc is where the disordered phase becomes unstable (a spinodal); the ordering wavevector has {} symmetry-equivalent partners{}, so the ordered phase may appear by a first-order jump above this Tc — compare free energies with `rungs phases`",
+            star.len(),
+            if has_cubic_invariant(&star, d) {
+                " and admits a cubic invariant"
+            } else {
+                ""
+            }
+        ));
+    }
+    let kind = ordering.kind();
+    let mode_real: Vec<f64> = ordering.site_mode.iter().map(|c| c.re).collect();
+    Ok(CriticalPoint {
+        level: level.name.clone(),
+        max_cluster_sites: level.max_cluster_sites(),
+        field: follower.field(),
+        tc: Some(tc),
+        searched_down_to: tc,
+        mode: mode_real,
+        kind,
+        ordering: Some(ordering),
+        amplitude,
+        notes: std::mem::take(notes),
+        seconds: start.elapsed().as_secs_f64(),
+    })
+}
+
+/// Axes and face diagonals of reciprocal space.
+fn directions(d: usize) -> Vec<Wavevector> {
+    let mut out = Vec::new();
+    for i in 0..d {
+        let mut e = [0.0; 3];
+        e[i] = 1.0;
+        out.push(e);
+    }
+    for i in 0..d {
+        for j in i + 1..d {
+            let mut p = [0.0; 3];
+            p[i] = 1.0;
+            p[j] = 1.0;
+            out.push(p);
+            p[j] = -1.0;
+            out.push(p);
+        }
+    }
+    out
+}
+
+/// The distinct images of q under the lattice's point group (q ↦ R⁻ᵀ q for cell maps R).
+pub fn star_of(lattice: &Lattice, q: &Wavevector) -> Vec<Wavevector> {
+    star_under(&symmetry::point_group(lattice), q, lattice.dimension())
+}
+
+/// The distinct images of q under `ops`.
+fn star_under(ops: &[symmetry::SiteMap], q: &Wavevector, d: usize) -> Vec<Wavevector> {
+    let mut out: Vec<Wavevector> = Vec::new();
+    for op in ops {
+        let Some(inv) = inverse3(&op.rot) else {
+            continue;
+        };
+        // q' = (R⁻¹)ᵀ q
+        let mut p = [0.0; 3];
+        for (i, pi) in p.iter_mut().enumerate() {
+            *pi = (0..3).map(|k| inv[k][i] as f64 * q[k]).sum();
+        }
+        let p = canonical(&p, d);
+        let eq = |a: &Wavevector, b: &Wavevector| {
+            (0..d).all(|k| {
+                let x = (a[k] - b[k]).rem_euclid(1.0);
+                x < 1e-9 || x > 1.0 - 1e-9
+            })
+        };
+        if !out.iter().any(|o| eq(o, &p)) {
+            out.push(p);
+        }
+    }
+    out
+}
+
+/// Whether three members of the star (or their negatives) sum to a reciprocal lattice
+/// vector (Landau's condition for a cubic invariant).
+fn has_cubic_invariant(star: &[Wavevector], d: usize) -> bool {
+    let mut all: Vec<Wavevector> = star.to_vec();
+    all.extend(star.iter().map(|q| q.map(|v| -v)));
+    for a in &all {
+        for b in &all {
+            for c in &all {
+                if (0..d).all(|k| {
+                    let s = (a[k] + b[k] + c[k]).rem_euclid(1.0);
+                    s < 1e-9 || s > 1.0 - 1e-9
+                }) && !(0..d).all(|k| a[k].abs() < 1e-12)
+                {
+                    return true;
+                }
+            }
+        }
+    }
+    false
+}
+
+fn inverse3(m: &[[i32; 3]; 3]) -> Option<[[i32; 3]; 3]> {
+    let det = m[0][0] * (m[1][1] * m[2][2] - m[1][2] * m[2][1])
+        - m[0][1] * (m[1][0] * m[2][2] - m[1][2] * m[2][0])
+        + m[0][2] * (m[1][0] * m[2][1] - m[1][1] * m[2][0]);
+    if det.abs() != 1 {
+        return None;
+    }
+    let mut inv = [[0i32; 3]; 3];
+    for (i, row) in inv.iter_mut().enumerate() {
+        for (j, v) in row.iter_mut().enumerate() {
+            // cofactor of (j, i)
+            let (r1, r2) = ((j + 1) % 3, (j + 2) % 3);
+            let (c1, c2) = ((i + 1) % 3, (i + 2) % 3);
+            *v = (m[r1][c1] * m[r2][c2] - m[r1][c2] * m[r2][c1]) * det;
+        }
+    }
+    Some(inv)
+}
+
+/// `a, b, c` with 6 significant digits, first `d` components.
+pub fn fmt_vec(q: &Wavevector, d: usize) -> String {
+    q[..d]
+        .iter()
+        .map(|v| crate::report_num(*v))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+fn fmt_cell(n: &[usize; 3], d: usize) -> String {
+    n[..d]
+        .iter()
+        .map(usize::to_string)
+        .collect::<Vec<_>>()
+        .join("x")
+}
+
+/// Normalise site components (largest |·| = 1, first non-zero positive) and classify
+/// (used by the big-level path, which searches q = 0 only).
 pub(crate) fn classify(components: &[f64]) -> (Vec<f64>, ModeKind) {
     let big = components.iter().fold(0.0f64, |a, &b| a.max(b.abs()));
     if big < 1e-8 {
@@ -405,4 +911,28 @@ pub(crate) fn classify(components: &[f64]) -> (Vec<f64>, ModeKind) {
         ModeKind::Staggered
     };
     (mode, kind)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn inverse_of_cell_maps() {
+        let m = [[0, 1, 0], [-1, 0, 0], [0, 0, 1]];
+        let inv = inverse3(&m).unwrap();
+        for i in 0..3 {
+            for j in 0..3 {
+                let p: i32 = (0..3).map(|k| m[i][k] * inv[k][j]).sum();
+                assert_eq!(p, i32::from(i == j));
+            }
+        }
+    }
+
+    #[test]
+    fn grid_keeps_one_of_each_pair() {
+        let g = zone_grid(2, 4);
+        // 16 points, of which (0,0), (0,½), (½,0), (½,½) are their own negatives.
+        assert_eq!(g.len(), (16 - 4) / 2 + 4);
+    }
 }

@@ -1,19 +1,27 @@
 //! Per-site observables of a solved state.
 //!
-//! With H the Hessian of F (per cell) at the equilibrium ξ*, e the field direction
-//! (`e_v = 1` on every site variable) and N_b the sites per cell:
+//! With H the Hessian of F (per cell) at the equilibrium x*, N_b the sites per cell,
+//! `b = ∂(Σ_a m_a)/∂x` (the field's direction: ∂(∇F)/∂h = −b) and ∇E the energy's
+//! gradient:
 //!
 //! ```text
-//! m = Σ_a ξ_a / N_b,   U = E/N_b,   F = F/N_b,   S = (U − F)/T
-//! χ = ∂m/∂h = eᵀ H⁻¹ e / N_b           (dξ*/dh = H⁻¹ e)
-//! C = ∂U/∂T = T ∇Sᵀ H⁻¹ ∇S / N_b       (dξ*/dT = H⁻¹ ∇S, ∇F = 0)
+//! m = Σ_a m_a / N_b,   U = E/N_b,   S = Σ_γ a_γ S_γ / N_b,   F = U − T S
+//! χ = ∂m/∂h = bᵀ H⁻¹ b / N_b                 (dx*/dh = H⁻¹ b)
+//! C = ∂U/∂T = ∇Eᵀ H⁻¹ ∇E / (T N_b)            (dx*/dT = H⁻¹ ∇S, ∇S = ∇E/T at x*)
 //! ```
+//!
+//! Every term is a quadratic form of a simple vector with the inverse Hessian, solved by
+//! Cholesky on a Hessian assembled in double-double: the precision the basis gives the
+//! cluster probabilities carries through to C and χ (an ordered state at low
+//! temperature in the flip basis; the paramagnet, whose even and odd blocks are solved
+//! apart, in the Walsh basis with a reference). S is summed from the cluster entropies
+//! themselves, not as (U − F)/T, so that it keeps its digits when it is tiny.
 
 use nalgebra::{DMatrix, DVector};
 use rungs_lattice::{BondTerm, Level};
 
 use crate::error::SolveError;
-use crate::functional::Functional;
+use crate::functional::{Basis, Block, Functional};
 use crate::state::{full_hessian, State};
 
 /// Observables per site at one (T, h).
@@ -41,58 +49,123 @@ pub struct Observables {
     pub bond_correlations: Vec<f64>,
 }
 
-/// Solve `H y = b` for a symmetric H: Cholesky, else LU; `None` if singular.
-fn solve_symmetric(h: &DMatrix<f64>, b: &DVector<f64>) -> Option<DVector<f64>> {
-    if let Some(ch) = h.clone().cholesky() {
-        return Some(ch.solve(b));
+/// The error for a state whose Hessian is not positive definite.
+fn not_a_minimum(level: &str, t: f64, h: f64) -> SolveError {
+    SolveError::TcSearch {
+        level: level.to_string(),
+        detail: format!(
+            "the Hessian is singular or not positive definite at T = {t}, h = {h} (a critical point, or a saddle): C and χ do not exist there"
+        ),
     }
-    h.clone().lu().solve(b)
 }
 
-/// The observables of `state` of `level`.
-pub fn observables(level: &Level, state: &State) -> Result<Observables, SolveError> {
-    let f = Functional::new(level, state.t, state.h);
-    let x = &state.solution.x;
-    let ev = &state.solution.evaluation;
-    let nb = level.sites_per_cell as f64;
-    let singular = || SolveError::TcSearch {
-        level: level.name.clone(),
-        detail: format!(
-            "the Hessian is singular at T = {}, h = {} (a critical point): C and χ diverge there",
-            state.t, state.h
-        ),
-    };
-    let hess = full_hessian(&f, x).ok_or_else(singular)?;
-    let mut e = DVector::zeros(f.len());
-    for &v in &level.site_vars {
-        e[v] = 1.0;
+/// `vᵀ H⁻¹ v` for a symmetric positive definite H (Cholesky); `None` otherwise.
+fn inverse_form(h: DMatrix<f64>, v: &DVector<f64>) -> Option<f64> {
+    if v.is_empty() || v.iter().all(|&x| x == 0.0) {
+        return Some(0.0);
     }
-    let grad_s = DVector::from_vec(f.entropy_gradient(x).ok_or_else(singular)?);
-    let he = solve_symmetric(&hess, &e).ok_or_else(singular)?;
-    let hs = solve_symmetric(&hess, &grad_s).ok_or_else(singular)?;
-    let susceptibility = e.dot(&he) / nb;
-    let specific_heat = state.t * grad_s.dot(&hs) / nb;
-    let bond_correlations = level
-        .bond_terms
-        .iter()
-        .map(|b| match *b {
-            BondTerm::Correlated { var, .. } => x[var],
-            BondTerm::Factorised { a, b, .. } => x[a] * x[b],
-        })
-        .collect();
-    let sub: Vec<f64> = level.site_vars.iter().map(|&v| x[v]).collect();
+    let ch = h.cholesky()?;
+    // vᵀH⁻¹v = |L⁻¹v|²: a sum of squares, no cancellation.
+    let mut y = v.clone();
+    ch.l_dirty().solve_lower_triangular_mut(&mut y);
+    Some(y.norm_squared())
+}
+
+/// Whether x is a paramagnet in the Walsh basis at h = 0 (every odd value zero), whose
+/// Hessian splits into even and odd blocks.
+fn is_paramagnet(f: &Functional, x: &[f64]) -> bool {
+    if f.field() != 0.0 || *f.basis() != Basis::Walsh {
+        return false;
+    }
+    let v = f.values(x);
+    let level = f.level();
+    (0..v.len()).all(|k| !level.is_odd(k) || v[k] == 0.0)
+}
+
+/// The observables of the equilibrium state `x` of functional `f`.
+pub fn observables_at(f: &Functional, x: &[f64]) -> Result<Observables, SolveError> {
+    let level = f.level();
+    let (t, h) = (f.temperature(), f.field());
+    let nb = level.sites_per_cell as f64;
+    let fail = || not_a_minimum(&level.name, t, h);
+    let ev = f.evaluate(x).ok_or_else(fail)?;
+    let mut b = vec![0.0; f.len()];
+    for &(v, dm) in f.site_derivatives() {
+        b[v] += dm;
+    }
+    let grad_e = f.energy_gradient(x);
+    let (chi_form, c_form) = if is_paramagnet(f, x) {
+        let (odd, even) = (Block::odd(level), Block::even(level));
+        let h_odd = f
+            .hessian_block_precise(x, &odd.vars, &odd.pos)
+            .ok_or_else(fail)?;
+        let h_even = f
+            .hessian_block_precise(x, &even.vars, &even.pos)
+            .ok_or_else(fail)?;
+        (
+            inverse_form(h_odd, &odd.gather(&b)).ok_or_else(fail)?,
+            inverse_form(h_even, &even.gather(&grad_e)).ok_or_else(fail)?,
+        )
+    } else {
+        let all = Block::all(level);
+        let hess = f
+            .hessian_block_precise(x, &all.vars, &all.pos)
+            .ok_or_else(fail)?;
+        (
+            inverse_form(hess.clone(), &DVector::from_vec(b)).ok_or_else(fail)?,
+            inverse_form(hess, &DVector::from_vec(grad_e)).ok_or_else(fail)?,
+        )
+    };
+    let values = f.values(x);
+    let bond_correlations = bond_correlations(f, &values);
+    let sub = f.site_magnetizations(x);
     let energy = ev.energy / nb;
-    let free_energy = ev.free_energy / nb;
+    let entropy = ev.entropy / nb;
     Ok(Observables {
-        temperature: state.t,
-        field: state.h,
+        temperature: t,
+        field: h,
         magnetization: sub.iter().sum::<f64>() / nb,
         sublattice_magnetization: sub,
         energy,
-        free_energy,
-        entropy: (energy - free_energy) / state.t,
-        specific_heat,
-        susceptibility,
+        free_energy: energy - t * entropy,
+        entropy,
+        specific_heat: c_form / (t * nb),
+        susceptibility: chi_form / nb,
         bond_correlations,
     })
+}
+
+/// ⟨s_i s_j⟩ of every bond, from the variables' values in the functional's basis.
+fn bond_correlations(f: &Functional, v: &[f64]) -> Vec<f64> {
+    let level = f.level();
+    let m = |var: usize| -> f64 {
+        match f.basis() {
+            Basis::Walsh => v[var],
+            Basis::Flip { pattern } => {
+                let a = level.variables[var].site(0).0;
+                pattern[a] * (1.0 - 2.0 * v[var])
+            }
+        }
+    };
+    level
+        .bond_terms
+        .iter()
+        .map(|b| match (*b, f.basis()) {
+            (BondTerm::Correlated { var, .. }, Basis::Walsh) => v[var],
+            (BondTerm::Correlated { var, .. }, Basis::Flip { pattern }) => {
+                let c = &level.variables[var];
+                let (a, b) = (c.site(0).0, c.site(1).0);
+                let (va, vb) = (level.site_vars[a], level.site_vars[b]);
+                pattern[a] * pattern[b] * (1.0 - 2.0 * v[va] - 2.0 * v[vb] + 4.0 * v[var])
+            }
+            (BondTerm::Factorised { a, b, .. }, _) => m(a) * m(b),
+        })
+        .collect()
+}
+
+/// The observables of `state` of `level` (Walsh basis, no reference).
+pub fn observables(level: &Level, state: &State) -> Result<Observables, SolveError> {
+    let f = Functional::new(level, state.t, state.h);
+    let _ = full_hessian;
+    observables_at(&f, &state.solution.x)
 }

@@ -151,14 +151,32 @@ fn neel_order_on_a_supercell_matches_the_ferromagnet() {
 }
 
 #[test]
-fn antiferromagnet_without_supercell_finds_no_uniform_order() {
-    let anti = inline(
-        "name: sq\ndimension: 2\nvectors: [[1.0, 0.0], [0.0, 1.0]]\nbasis: [{name: a}]\n\
-         couplings: {J: -1.0}\nbonds:\n  - {from: a, to: a, cell: [1, 0], coupling: J}\n  \
-         - {from: a, to: a, cell: [0, 1], coupling: J}\n",
-    );
-    let cp = critical_temperature(&anti, &level(&anti, "pair"), TcOptions::default()).unwrap();
-    assert!(cp.tc.is_none());
+fn square_antiferromagnet_orders_at_the_zone_corner_with_the_ferromagnets_tc() {
+    // On a bipartite lattice flipping one sublattice maps J → −J: every level has the
+    // ferromagnet's Tc, and its instability is at q = (1/2, 1/2) with the same critical
+    // amplitude, now of the staggered susceptibility (common practice).
+    let text = |j: f64| {
+        format!(
+            "name: sq\ndimension: 2\nvectors: [[1.0, 0.0], [0.0, 1.0]]\nbasis: [{{name: a}}]\n\
+             couplings: {{J: {j}}}\nbonds:\n  - {{from: a, to: a, cell: [1, 0], coupling: J}}\n  \
+             - {{from: a, to: a, cell: [0, 1], coupling: J}}\nclusters:\n  plaquette:\n    \
+             - [[a, [0, 0]], [a, [1, 0]], [a, [0, 1]], [a, [1, 1]]]\n  block3:\n    block: [3, 3]\n"
+        )
+    };
+    let (anti, ferro) = (inline(&text(-1.0)), inline(&text(1.0)));
+    for name in ["site", "pair", "plaquette", "block3"] {
+        let a = critical_temperature(&anti, &level(&anti, name), TcOptions::default()).unwrap();
+        let f = critical_temperature(&ferro, &level(&ferro, name), TcOptions::default()).unwrap();
+        let (ta, tf) = (a.tc.unwrap(), f.tc.unwrap());
+        assert!((ta / tf - 1.0).abs() < 1e-8, "{name}: {ta} vs {tf}");
+        let o = a.ordering.unwrap();
+        assert_eq!(o.wavevector, [0.5, 0.5, 0.0], "{name}");
+        assert_eq!(o.supercell(), [2, 2, 1]);
+        assert_eq!(a.kind, ModeKind::Staggered);
+        assert_eq!(f.ordering.unwrap().wavevector, [0.0, 0.0, 0.0]);
+        let (aa, af) = (a.amplitude.unwrap(), f.amplitude.unwrap());
+        assert!((aa / af - 1.0).abs() < 1e-5, "{name}: {aa} vs {af}");
+    }
 }
 
 #[test]

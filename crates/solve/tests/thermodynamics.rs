@@ -180,7 +180,23 @@ fn plaquette_sweeps_through_tc_both_ways() {
     let up: Vec<f64> = (0..=30).map(|k| 1.0 + 0.1 * k as f64).collect();
     let down: Vec<f64> = up.iter().rev().copied().collect();
     for temps in [up, down] {
-        let obs = rungs_solve::sweep(&lv, &temps, &[0.0], &|| {}).unwrap();
+        let swept = rungs_solve::sweep_level(
+            &l,
+            &lv,
+            &temps,
+            &[0.0],
+            rungs_solve::SweepOptions::default(),
+            &|| {},
+        )
+        .unwrap();
+        let obs: Vec<Observables> = swept
+            .points
+            .iter()
+            .map(|p| match p {
+                rungs_solve::SweepPoint::Solved(p) => p.observables.clone(),
+                rungs_solve::SweepPoint::Omitted { reason, .. } => panic!("{reason}"),
+            })
+            .collect();
         for o in &obs {
             // The plaquette level's own Tc (rungs, `square_plaquette_kikuchi` in
             // tc_levels.rs; Kikuchi 1951 gives 2.4257): the branch switch is tested here.

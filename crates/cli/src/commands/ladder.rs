@@ -33,7 +33,7 @@ pub use climb::{Extrapolated, RungResult};
 pub use reference::{ReferenceKind, ReferenceTc};
 
 /// How to climb the ladder.
-#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct LadderOptions {
     /// Climb up to this many sites: the file's levels with at most this many sites plus
     /// square-ish blocks of cells up to it (only the file's levels when `None`).
@@ -42,6 +42,8 @@ pub struct LadderOptions {
     pub monte_carlo: bool,
     /// Draw progress bars (on an interactive terminal only; see [`Progress`]).
     pub progress: bool,
+    /// Uniform field h (every rung's Tc is that of the field-polarised phase).
+    pub field: f64,
 }
 
 /// A computed ladder: every rung, the reference, the extrapolations and the notes that
@@ -85,7 +87,7 @@ impl Ladder {
         } else {
             Progress::hidden()
         };
-        let rungs = climb::climb(lattice, &names, &bar)?;
+        let rungs = climb::climb(lattice, &names, options.field, &bar)?;
         bar.finish();
         let extrapolations = climb::extrapolate(&rungs, &mut notes);
         let reference = reference::choose(lattice, &rungs, &extrapolations, options, &mut notes);
@@ -117,10 +119,17 @@ impl Ladder {
 /// Run `rungs ladder`.
 pub fn run(args: &LadderArgs, out: &mut Output) -> Result<(), CliError> {
     let lattice = super::load_lattice(&args.common.lattice)?;
+    let field = args.field.unwrap_or(lattice.field());
+    if !field.is_finite() {
+        return Err(CliError::Usage(format!(
+            "--field {field} is not a finite number"
+        )));
+    }
     let options = LadderOptions {
         up_to: args.up_to,
         monte_carlo: args.mc,
         progress: true,
+        field,
     };
     let ladder = Ladder::compute(&lattice, options)?;
     if let Some(path) = &args.plot {

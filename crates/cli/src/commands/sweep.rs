@@ -2,15 +2,14 @@
 //! [--plot FILE.svg]`: equilibrium thermodynamics per site along a temperature path,
 //! one row per (level, temperature, field).
 //!
-//! Each level is swept by the engine (`rungs_solve::sweep`: fields outermost, the
-//! temperatures in the order given, every point warm-started from the one before, so at
-//! h = 0 below Tc the m > 0 branch is followed); levels run in parallel (rayon) with one
-//! progress bar ticking per point. A point whose response functions do not exist — the
-//! Hessian is singular or not positive definite (C or χ negative) at, within rounding, a
-//! level's critical point, or a value is not finite — is left out with a note saying
-//! where, never printed as NaN or inf; when the engine stops at such a point the level is
-//! re-run point by point so the other points survive. Any other engine failure (no
-//! convergence, a level too large) stops the command with exit status 1.
+//! Each level is swept by the engine (`rungs_solve::sweep_level`: fields outermost, the
+//! temperatures in the order given — descending paths too —, every point continuing the
+//! branch of the one before, on the cell that holds the level's ordering wavevector or
+//! on `--supercell`); levels run in parallel (rayon) with one progress bar ticking per
+//! point. A point the engine cannot solve, or whose response functions do not exist
+//! (the Hessian is singular at a critical point, C or χ negative, a value not finite),
+//! is left out with a note saying where, never printed as NaN or inf; the path goes on.
+//! A level too large for the engine stops the command with exit status 1.
 //!
 //! With `--plot FILE.svg` the sweep is also drawn ([`crate::plot::sweep`]), with each
 //! level's Tc marked when the sweep includes h = 0 and the exact curves of a closed form
@@ -18,9 +17,9 @@
 
 use rayon::prelude::*;
 use rungs_lattice::{Lattice, LatticeError, Level};
-use rungs_solve::{
-    critical_temperature, observables, solve_equilibrium, Observables, SolveError, TcOptions,
-};
+use rungs_solve::ordering::Ordering;
+use rungs_solve::phase::Branch;
+use rungs_solve::{sweep_level, Observables, SolveError, SweepOptions, SweepPoint};
 
 use super::tc::solve_error;
 use crate::args::SweepArgs;
@@ -32,7 +31,7 @@ mod report;
 pub use report::SweepReport;
 
 /// CSV columns (the command contract).
-pub const COLUMNS: [&str; 9] = [
+pub const COLUMNS: [&str; 10] = [
     "level",
     "temperature",
     "field",
@@ -42,6 +41,7 @@ pub const COLUMNS: [&str; 9] = [
     "entropy",
     "specific_heat",
     "susceptibility",
+    "order_parameter",
 ];
 
 /// Run `rungs sweep`.
@@ -49,12 +49,27 @@ pub fn run(args: &SweepArgs, out: &mut Output) -> Result<(), CliError> {
     let lattice = super::load_lattice(&args.common.lattice)?;
     let names = super::select_levels(&lattice, Some(&args.levels))?;
     let fields = fields(args, lattice.field());
+    if let Some(h) = fields.iter().find(|h| !h.is_finite()) {
+        return Err(CliError::Usage(format!("field {h} is not a finite number")));
+    }
+    let supercell = match args.supercell {
+        Some(sc) if sc.given != lattice.dimension() => {
+            return Err(CliError::Usage(format!(
+                "--supercell: {} factor(s) given but `{}` is {}-dimensional; give one factor per dimension, e.g. {}",
+                sc.given,
+                lattice.name(),
+                lattice.dimension(),
+                vec!["2"; lattice.dimension()].join("x"),
+            )))
+        }
+        Some(sc) => Some(sc.factors),
+        None => None,
+    };
     let temps = &args.temps.0;
-    let want_tc = args.plot.is_some() && fields.contains(&0.0);
     let progress = Progress::new((names.len() * temps.len() * fields.len()) as u64, "sweep");
     let levels = names
         .par_iter()
-        .map(|name| sweep_level(&lattice, name, temps, &fields, want_tc, &progress))
+        .map(|name| sweep_one(&lattice, name, temps, &fields, supercell, &progress))
         .collect::<Result<Vec<_>, _>>()?;
     progress.finish();
     let report = SweepReport::new(&lattice, fields, levels, args.plot.is_some());
@@ -84,6 +99,30 @@ pub struct Omitted {
     pub reason: String,
 }
 
+/// What a reported point carries beyond its observables.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PointInfo {
+    /// Amplitude of the level's ordering pattern.
+    pub order_parameter: f64,
+    /// Disordered or ordered.
+    pub branch: Branch,
+    /// Cautions (negative entropy, ...); empty when none.
+    pub notes: Vec<String>,
+}
+
+/// A bond of the cell as reported beside its correlation.
+#[derive(Debug, Clone)]
+pub struct BondLabel {
+    /// First site's name.
+    pub from: String,
+    /// Second site's name.
+    pub to: String,
+    /// Cell offset of the second site.
+    pub cell: Vec<i32>,
+    /// Coupling name.
+    pub coupling: String,
+}
+
 /// One level's sweep.
 #[derive(Debug, Clone)]
 pub struct LevelSweep {
@@ -93,20 +132,31 @@ pub struct LevelSweep {
     pub max_cluster_sites: usize,
     /// Points with every observable finite, fields outermost, temperatures as given.
     pub points: Vec<Observables>,
+    /// Per point of `points`: order parameter, branch, notes.
+    pub info: Vec<PointInfo>,
     /// Points left out.
     pub omitted: Vec<Omitted>,
-    /// The level's Tc at h = 0, when it was asked for (plots) and found.
+    /// The level's Tc at h = 0, when it has one.
     pub tc: Option<f64>,
+    /// The cell followed (cells along each axis) and its site names.
+    pub cell: [usize; 3],
+    /// Names of the cell's sites (`a@i,j,k` on a supercell).
+    pub site_names: Vec<String>,
+    /// The cell's bonds.
+    pub bonds: Vec<BondLabel>,
+    /// The ordering whose pattern is the order parameter.
+    pub ordering: Option<Ordering>,
+    /// Cautions for the whole level.
+    pub notes: Vec<String>,
 }
 
-/// Sweep one level: build it, run the engine, keep the reportable points; with `want_tc`
-/// also find its Tc (for the plot's markers; a failure there only drops the marker).
-pub fn sweep_level(
+/// Sweep one level: build it, run the engine, keep the reportable points.
+pub fn sweep_one(
     lattice: &Lattice,
     name: &str,
     temps: &[f64],
     fields: &[f64],
-    want_tc: bool,
+    supercell: Option<[usize; 3]>,
     progress: &Progress,
 ) -> Result<LevelSweep, CliError> {
     let level = match Level::build(lattice, name) {
@@ -119,47 +169,73 @@ pub fn sweep_level(
         Err(e) => return Err(e.into()),
     };
     let tick = || progress.inc(1);
-    let results: Vec<Result<Observables, Omitted>> =
-        match rungs_solve::sweep(&level, temps, fields, &tick) {
-            Ok(points) => points.into_iter().map(Ok).collect(),
-            Err(e) if is_point_error(&e) => point_by_point(&level, temps, fields)?,
-            Err(e) => return Err(too_large_or(e, name)),
-        };
-    let mut points = Vec::with_capacity(results.len());
+    let options = SweepOptions { supercell };
+    let swept = sweep_level(lattice, &level, temps, fields, options, &tick)
+        .map_err(|e| too_large_or(e, name))?;
+    let cell_lattice = if swept.cell == [1, 1, 1] {
+        lattice.clone()
+    } else {
+        lattice.supercell(swept.cell)?
+    };
+    let site_names: Vec<String> = cell_lattice
+        .basis()
+        .iter()
+        .map(|s| s.name.clone())
+        .collect();
+    let bonds = cell_lattice
+        .bonds()
+        .iter()
+        .map(|b| BondLabel {
+            from: site_names[b.from].clone(),
+            to: site_names[b.to].clone(),
+            cell: b.cell[..lattice.dimension()].to_vec(),
+            coupling: b.coupling.clone(),
+        })
+        .collect();
+    let mut points = Vec::with_capacity(swept.points.len());
+    let mut info = Vec::with_capacity(swept.points.len());
     let mut omitted = Vec::new();
-    for r in results {
-        match r.and_then(|p| match defect(&p) {
-            None => Ok(p),
-            Some(reason) => Err(Omitted {
-                temperature: p.temperature,
-                field: p.field,
-                reason: reason.into(),
+    for p in swept.points {
+        match p {
+            SweepPoint::Solved(p) => match defect(&p.observables) {
+                None => {
+                    info.push(PointInfo {
+                        order_parameter: p.order_parameter,
+                        branch: p.branch,
+                        notes: p.notes.clone(),
+                    });
+                    points.push(p.observables);
+                }
+                Some(reason) => omitted.push(Omitted {
+                    temperature: p.observables.temperature,
+                    field: p.observables.field,
+                    reason: reason.into(),
+                }),
+            },
+            SweepPoint::Omitted {
+                temperature,
+                field,
+                reason,
+            } => omitted.push(Omitted {
+                temperature,
+                field,
+                reason,
             }),
-        }) {
-            Ok(p) => points.push(p),
-            Err(o) => omitted.push(o),
         }
     }
-    let tc = if want_tc {
-        critical_temperature(lattice, &level, TcOptions::default())
-            .ok()
-            .and_then(|cp| cp.tc)
-    } else {
-        None
-    };
     Ok(LevelSweep {
         level: name.to_string(),
         max_cluster_sites: level.max_cluster_sites(),
         points,
+        info,
         omitted,
-        tc,
+        tc: swept.tc,
+        cell: swept.cell,
+        site_names,
+        bonds,
+        ordering: swept.ordering,
+        notes: swept.notes,
     })
-}
-
-/// An engine error that concerns one point only: the Hessian is singular there (the
-/// level's critical point), so C and χ do not exist.
-fn is_point_error(e: &SolveError) -> bool {
-    matches!(e, SolveError::TcSearch { .. })
 }
 
 /// A fatal engine error, saying which level a refusal concerns.
@@ -170,34 +246,6 @@ fn too_large_or(e: SolveError, name: &str) -> CliError {
         }
         e => solve_error(e),
     }
-}
-
-/// The same path as `rungs_solve::sweep`, one point at a time, so that a point without
-/// response functions is left out instead of ending the level.
-fn point_by_point(
-    level: &Level,
-    temps: &[f64],
-    fields: &[f64],
-) -> Result<Vec<Result<Observables, Omitted>>, CliError> {
-    let mut out = Vec::with_capacity(temps.len() * fields.len());
-    for &h in fields {
-        let mut warm: Option<Vec<f64>> = None;
-        for &t in temps {
-            let state = solve_equilibrium(level, t, h, warm.as_deref())
-                .map_err(|e| too_large_or(e, &level.name))?;
-            match observables(level, &state) {
-                Ok(p) => out.push(Ok(p)),
-                Err(e) if is_point_error(&e) => out.push(Err(Omitted {
-                    temperature: t,
-                    field: h,
-                    reason: e.to_string(),
-                })),
-                Err(e) => return Err(solve_error(e)),
-            }
-            warm = Some(state.solution.x);
-        }
-    }
-    Ok(out)
 }
 
 /// Why a point cannot be reported, if it cannot: a number that is not finite, or a

@@ -27,7 +27,7 @@ use rungs_reference::closed::ClosedForm;
 use rungs_solve::functional::check_size;
 use rungs_solve::{critical_temperature, CriticalPoint, SolveError, TcOptions};
 
-use crate::args::{Supercell, TcArgs};
+use crate::args::TcArgs;
 use crate::error::CliError;
 use crate::output::Output;
 use crate::progress::Progress;
@@ -56,6 +56,12 @@ pub const ORBIT_ROW: &str = "big level, solved on point-group orbits: uniform or
 pub fn run(args: &TcArgs, out: &mut Output) -> Result<(), CliError> {
     let primitive = super::load_lattice(&args.common.lattice)?;
     let lattice = super::apply_supercell(primitive.clone(), args.supercell)?;
+    let field = args.field.unwrap_or(primitive.field());
+    if !field.is_finite() {
+        return Err(CliError::Usage(format!(
+            "--field {field} is not a finite number"
+        )));
+    }
     let names = sort_levels(
         &lattice,
         super::select_levels(&lattice, args.levels.as_deref())?,
@@ -72,13 +78,13 @@ pub fn run(args: &TcArgs, out: &mut Output) -> Result<(), CliError> {
         .par_iter()
         .map(|p| {
             if p.big {
-                return Ok(None);
+                return None;
             }
-            let row = search(&lattice, p, None);
+            let row = search(&lattice, p, None, field);
             progress.inc(1);
-            row.map(Some)
+            Some(row)
         })
-        .collect::<Result<Vec<_>, CliError>>()?;
+        .collect::<Vec<_>>();
     for (i, p) in prepared.iter().enumerate().filter(|(_, p)| p.big) {
         let start_below = rows
             .iter()
@@ -87,17 +93,33 @@ pub fn run(args: &TcArgs, out: &mut Output) -> Result<(), CliError> {
             .filter_map(LevelTc::tc)
             .reduce(f64::min)
             .map(|t| 1.01 * t);
-        rows[i] = Some(search(&lattice, p, start_below)?);
+        rows[i] = Some(search(&lattice, p, start_below, field));
         progress.inc(1);
     }
     let levels: Vec<LevelTc> = rows.into_iter().flatten().collect();
     progress.finish();
-    if let [only] = levels.as_slice() {
-        if let TcOutcome::Refused(reason) = &only.outcome {
-            return Err(CliError::NotConverged(reason.clone()));
-        }
+    // A level that fails is reported in its row; the command fails only when none
+    // gave a result.
+    if levels
+        .iter()
+        .all(|r| matches!(r.outcome, TcOutcome::Refused(_) | TcOutcome::Failed(_)))
+    {
+        let reasons: Vec<String> = levels
+            .iter()
+            .filter_map(|r| match &r.outcome {
+                TcOutcome::Refused(e) | TcOutcome::Failed(e) => Some(e.clone()),
+                TcOutcome::Searched(_) => None,
+            })
+            .collect();
+        return Err(CliError::NotConverged(reasons.join("; ")));
     }
-    out.emit(&TcReport::new(&primitive, &lattice, args.supercell, levels))
+    out.emit(&TcReport::new(
+        &primitive,
+        &lattice,
+        args.supercell,
+        field,
+        levels,
+    ))
 }
 
 /// Levels in ladder order: `site`, `pair`, then the others by their largest cluster
@@ -125,6 +147,8 @@ pub enum TcOutcome {
     Searched(CriticalPoint),
     /// The engine refused the level (too large); the reason says why.
     Refused(String),
+    /// The search failed (no convergence); the reason says where.
+    Failed(String),
 }
 
 /// One level's row.
@@ -147,7 +171,7 @@ impl LevelTc {
     pub fn tc(&self) -> Option<f64> {
         match &self.outcome {
             TcOutcome::Searched(cp) => cp.tc.filter(|t| t.is_finite()),
-            TcOutcome::Refused(_) => None,
+            TcOutcome::Refused(_) | TcOutcome::Failed(_) => None,
         }
     }
 }
@@ -186,36 +210,34 @@ pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, CliError> {
     })
 }
 
-/// Find the Tc of a prepared level; `start_below` is where the search of a big level
-/// starts (`TcOptions::start_below`). A level the engine refuses as too large is a
-/// [`TcOutcome::Refused`]; any other failure is an error (exit status 1).
-pub fn search(
-    lattice: &Lattice,
-    p: &Prepared,
-    start_below: Option<f64>,
-) -> Result<LevelTc, CliError> {
+/// Find the Tc of a prepared level in field `field`; `start_below` is where the search
+/// of a big level starts (`TcOptions::start_below`). A level the engine refuses as too
+/// large is a [`TcOutcome::Refused`], one whose search fails a [`TcOutcome::Failed`]:
+/// the other levels still print.
+pub fn search(lattice: &Lattice, p: &Prepared, start_below: Option<f64>, field: f64) -> LevelTc {
     let start = Instant::now();
     let outcome = match &p.level {
         Err(reason) => TcOutcome::Refused(reason.clone()),
         Ok(level) => {
             let options = TcOptions {
                 start_below,
+                field,
                 ..TcOptions::default()
             };
             match critical_temperature(lattice, level, options) {
                 Ok(cp) => TcOutcome::Searched(cp),
                 Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
-                Err(e) => return Err(solve_error(e)),
+                Err(e) => TcOutcome::Failed(e.to_string()),
             }
         }
     };
-    Ok(LevelTc {
+    LevelTc {
         level: p.name.clone(),
         max_cluster_sites: p.max_cluster_sites,
         seconds: p.seconds + start.elapsed().as_secs_f64(),
         orbit_reduced: p.big,
         outcome,
-    })
+    }
 }
 
 /// An engine error as a command error: a bad temperature is bad input (exit status 2),
@@ -241,43 +263,54 @@ pub fn reference_tc(lattice: &Lattice) -> Option<(f64, String)> {
     ))
 }
 
-/// The note saying which order a level can find: order that keeps the translations of
-/// the (possibly enlarged) cell. Stressed when couplings are antiferromagnetic or the
-/// lattice is frustrated, where the order that matters breaks those translations.
-pub fn order_note(
-    lattice: &Lattice,
-    supercell: Option<Supercell>,
-    has_supercell_option: bool,
-) -> String {
-    let n = lattice.sites_per_cell();
+/// The note saying which order a level can find. Every level's instability is sought
+/// at every wavevector of the zone (see `rungs_solve::tc`), so order that breaks the
+/// cell's translations is found without a supercell; frustrated lattices are flagged,
+/// where a cluster approximation may order although the exact model does not.
+pub fn order_note(lattice: &Lattice) -> String {
     let antiferro = lattice.bonds().iter().any(|b| b.j < 0.0);
     let frustrated = antiferro && !lattice.is_bipartite();
-    let cell = match supercell {
-        Some(sc) => format!(
-            "the {n}-site cell of --supercell {}",
-            sc.factors[..sc.given]
-                .iter()
-                .map(usize::to_string)
-                .collect::<Vec<_>>()
-                .join("x")
-        ),
-        None => format!("the {n}-site cell"),
-    };
-    let fix = if has_supercell_option {
-        "use --supercell for order that breaks them"
-    } else {
-        "for order that breaks them, describe a larger cell in the lattice file (or see `rungs tc --supercell`)"
-    };
-    let base =
-        format!("each level looks only for order that keeps the translations of {cell}; {fix}.");
+    let base = "each level's instability is sought at every wavevector q, so order that breaks the \
+                cell's translations (Néel order, superstructures) is found without a supercell; q is in \
+                units of the reciprocal primitive vectors, and `supercell` is the smallest diagonal cell \
+                that holds the order (`rungs sweep` follows the ordered phase on it)."
+        .to_string();
     if frustrated {
         format!(
-            "IMPORTANT: antiferromagnetic couplings on a non-bipartite (frustrated) lattice: {base} \
-             The true ordering, if any, may need a larger cell than any given here."
+            "IMPORTANT: antiferromagnetic couplings on a non-bipartite (frustrated) lattice. Cluster \
+             approximations may predict order where the exact model has none (the triangular and kagome \
+             antiferromagnets have no transition at any T > 0: Wannier 1950, Phys. Rev. 79, 357; Kanô & \
+             Naya 1953, Prog. Theor. Phys. 10, 158). {}",
+            capitalised(&base)
         )
-    } else if antiferro {
-        format!("IMPORTANT: the couplings are antiferromagnetic, so the order to expect is staggered: {base}")
     } else {
         base
     }
+}
+
+/// `text` with its first letter upper-case.
+fn capitalised(text: &str) -> String {
+    let mut c = text.chars();
+    c.next()
+        .map_or_else(String::new, |f| f.to_uppercase().chain(c).collect())
+}
+
+/// The note for a field: what Tc means there, and why a ferromagnet has none.
+pub fn field_note(lattice: &Lattice, field: f64) -> Option<String> {
+    if field == 0.0 {
+        return None;
+    }
+    let ferro = lattice.bonds().iter().all(|b| b.j >= 0.0);
+    Some(if ferro {
+        format!(
+            "h = {field}: a uniform field breaks the up–down symmetry of a ferromagnet, so there is \
+             no phase transition in a field (common practice); any row without Tc says so. The \
+             zero-field reference is not used."
+        )
+    } else {
+        format!(
+            "h = {field}: Tc is where the field-polarised phase becomes unstable to order (e.g. the \
+             Néel line T_N(h) of an antiferromagnet); the zero-field reference is not used."
+        )
+    })
 }

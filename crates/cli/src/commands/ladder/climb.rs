@@ -90,6 +90,7 @@ pub fn rung_names(
 pub fn climb(
     lattice: &Lattice,
     names: &[String],
+    field: f64,
     bar: &Progress,
 ) -> Result<Vec<RungResult>, CliError> {
     let mut rungs = Vec::with_capacity(names.len());
@@ -119,6 +120,7 @@ pub fn climb(
             .map(|t| 1.01 * t);
         let options = TcOptions {
             start_below,
+            field,
             ..TcOptions::default()
         };
         let rung = match critical_temperature(lattice, &level, options) {
@@ -327,8 +329,8 @@ pub fn rung_notes(lattice: &Lattice, rungs: &[RungResult]) -> Vec<String> {
         }
         match r.mode {
             Some(ModeKind::Staggered) => notes.push(format!(
-                "level `{}` orders in a staggered mode (sites of the cell with opposite signs); χ̄ is the \
-                 amplitude of the uniform susceptibility",
+                "level `{}` orders in a staggered mode; χ̄ is the amplitude of the susceptibility of \
+                 that mode (the staggered susceptibility for Néel order)",
                 r.level
             )),
             Some(ModeKind::Hidden) => notes.push(format!(

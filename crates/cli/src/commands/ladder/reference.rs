@@ -62,6 +62,18 @@ pub fn choose(
     options: LadderOptions,
     notes: &mut Vec<String>,
 ) -> Option<ReferenceTc> {
+    if options.field != 0.0 {
+        notes.push(format!(
+            "h = {}: reference values are for h = 0, so none is used{}",
+            num(options.field),
+            if lattice.bonds().iter().all(|b| b.j >= 0.0) {
+                "; a ferromagnet has no phase transition in a uniform field (common practice)"
+            } else {
+                ""
+            }
+        ));
+        return None;
+    }
     let closed = ClosedForm::recognise(lattice);
     let file = lattice.reference();
     if let Some(form) = closed {

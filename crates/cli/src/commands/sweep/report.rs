@@ -1,33 +1,23 @@
 //! The `rungs sweep` report: a table per level (with the caution notes), CSV with the
 //! columns of the command contract, and JSON points carrying also the sublattice
-//! magnetisations and every bond's correlation. Points left out are listed with why.
+//! magnetisations of the cell followed, the ordering wavevector, the branch, every
+//! bond's correlation and a note. Points left out are listed with why.
 
 use rungs_lattice::Lattice;
 use rungs_reference::closed::ClosedForm;
 use rungs_solve::Observables;
 use serde_json::{json, Map, Value};
 
-use super::{LevelSweep, COLUMNS};
+use super::{LevelSweep, PointInfo, COLUMNS};
 use crate::commands::tc::{order_note, NOT_BOUNDS_NOTE, ONE_D_NOTE};
 use crate::output::{fixed, num, Block, Grid, Report, TextDoc};
 use crate::plot::sweep::{LevelCurves, SweepFigure};
-
-/// A bond as reported beside its correlation.
-#[derive(Debug, Clone)]
-struct BondLabel {
-    from: String,
-    to: String,
-    cell: Vec<i32>,
-    coupling: String,
-}
 
 /// The full `sweep` result.
 #[derive(Debug, Clone)]
 pub struct SweepReport {
     lattice: String,
     dimension: usize,
-    site_names: Vec<String>,
-    bonds: Vec<BondLabel>,
     fields: Vec<f64>,
     exact: Option<ClosedForm>,
     /// One entry per level, in the order asked for.
@@ -43,23 +33,10 @@ impl SweepReport {
         levels: Vec<LevelSweep>,
         plotted: bool,
     ) -> SweepReport {
-        let site_names: Vec<String> = lattice.basis().iter().map(|s| s.name.clone()).collect();
-        let bonds = lattice
-            .bonds()
-            .iter()
-            .map(|b| BondLabel {
-                from: site_names[b.from].clone(),
-                to: site_names[b.to].clone(),
-                cell: b.cell[..lattice.dimension()].to_vec(),
-                coupling: b.coupling.clone(),
-            })
-            .collect();
         let exact = ClosedForm::recognise(lattice);
         let mut report = SweepReport {
             lattice: lattice.name().to_string(),
             dimension: lattice.dimension(),
-            site_names,
-            bonds,
             fields,
             exact,
             levels,
@@ -72,14 +49,62 @@ impl SweepReport {
     fn make_notes(&self, lattice: &Lattice, plotted: bool) -> Vec<String> {
         let mut notes = vec![
             "per site, k_B = 1: T in units of J/k_B; m magnetisation, U energy, F free energy (J), \
-             S entropy (k_B), C specific heat (k_B), χ = ∂m/∂h."
+             S entropy (k_B), C specific heat (k_B), χ = ∂m/∂h (the uniform susceptibility), \
+             order parameter = amplitude of the level's ordering pattern in the sublattice \
+             magnetisations (|m| for uniform order, the staggered magnetisation for Néel order, \
+             0 in the disordered phase)."
                 .to_string(),
-            "at h = 0 below a level's Tc the ordered branch with m > 0 is reported; each point is \
-             warm-started from the previous temperature."
+            "each point continues the branch of the point before it (warm start), in the order the \
+             temperatures are given: a path that cools through a first-order transition stays in the \
+             disordered phase until it becomes unstable, one that heats stays ordered until that \
+             branch ends (hysteresis); the first point takes the lower free energy."
                 .to_string(),
-            order_note(lattice, None, false),
+            order_note(lattice),
             NOT_BOUNDS_NOTE.to_string(),
         ];
+        let d = self.dimension;
+        for l in &self.levels {
+            if l.cell != [1, 1, 1] {
+                let cell: Vec<String> = l.cell[..d].iter().map(usize::to_string).collect();
+                notes.push(format!(
+                    "level `{}` is followed on the {} cell ({} sites){}.",
+                    l.level,
+                    cell.join("x"),
+                    l.site_names.len(),
+                    l.ordering.as_ref().map_or(String::new(), |o| format!(
+                        ", which holds its ordering wavevector q = ({})",
+                        o.wavevector[..d]
+                            .iter()
+                            .map(|v| num(*v))
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    ))
+                ));
+            }
+            for n in &l.notes {
+                notes.push(format!("level `{}`: {n}", l.level));
+            }
+            // One note per kind of caution, with the points it concerns.
+            let mut kinds: Vec<(String, Vec<String>, String)> = Vec::new();
+            for (p, i) in l.points.iter().zip(&l.info) {
+                for n in &i.notes {
+                    let kind = n.split(['=', ':']).next().unwrap_or(n).trim().to_string();
+                    let at = format!("T = {}, h = {}", num(p.temperature), num(p.field));
+                    match kinds.iter_mut().find(|k| k.0 == kind) {
+                        Some(k) => k.1.push(at),
+                        None => kinds.push((kind, vec![at], n.clone())),
+                    }
+                }
+            }
+            for (_, at, first) in kinds {
+                let shown = if at.len() > 6 {
+                    format!("{} … {} ({} points)", at[0], at[at.len() - 1], at.len())
+                } else {
+                    at.join("; ")
+                };
+                notes.push(format!("level `{}` at {shown}: {first}", l.level));
+            }
+        }
         let ordering: Vec<&str> = self
             .levels
             .iter()
@@ -137,21 +162,27 @@ impl SweepReport {
         }
     }
 
-    fn point_json(&self, level: &str, p: &Observables) -> Value {
-        let sub: Map<String, Value> = self
+    fn point_json(&self, l: &LevelSweep, p: &Observables, info: &PointInfo) -> Value {
+        let sub: Map<String, Value> = l
             .site_names
             .iter()
             .cloned()
             .zip(p.sublattice_magnetization.iter().map(|m| json!(m)))
             .collect();
-        let bonds: Vec<Value> = self
+        let bonds: Vec<Value> = l
             .bonds
             .iter()
             .zip(&p.bond_correlations)
             .map(|(b, c)| json!({"from": b.from, "to": b.to, "cell": b.cell, "coupling": b.coupling, "correlation": c}))
             .collect();
+        let d = self.dimension;
+        let wavevector = l
+            .ordering
+            .as_ref()
+            .map_or_else(|| vec![0.0; d], |o| o.wavevector[..d].to_vec());
+        let note = (!info.notes.is_empty()).then(|| info.notes.join("; "));
         json!({
-            "level": level,
+            "level": l.level,
             "temperature": p.temperature,
             "field": p.field,
             "magnetization": p.magnetization,
@@ -160,8 +191,15 @@ impl SweepReport {
             "entropy": p.entropy,
             "specific_heat": p.specific_heat,
             "susceptibility": p.susceptibility,
+            "order_parameter": info.order_parameter,
+            "branch": info.branch.as_str(),
+            "sublattice_magnetizations": p.sublattice_magnetization,
             "sublattice_magnetization": sub,
+            "wavevector": wavevector,
+            "cell": l.cell[..d],
             "bond_correlations": bonds,
+            "note": note,
+            "negative_entropy": p.entropy < -1e-10,
         })
     }
 }
@@ -183,7 +221,12 @@ impl Report for SweepReport {
         let points: Vec<Value> = self
             .levels
             .iter()
-            .flat_map(|l| l.points.iter().map(|p| self.point_json(&l.level, p)))
+            .flat_map(|l| {
+                l.points
+                    .iter()
+                    .zip(&l.info)
+                    .map(move |(p, i)| self.point_json(l, p, i))
+            })
             .collect();
         let omitted: Vec<Value> = self
             .levels
@@ -206,7 +249,7 @@ impl Report for SweepReport {
     fn csv(&self) -> Grid {
         let mut grid = Grid::new(COLUMNS);
         for l in &self.levels {
-            for p in &l.points {
+            for (p, i) in l.points.iter().zip(&l.info) {
                 grid.push([
                     l.level.clone(),
                     num(p.temperature),
@@ -217,6 +260,7 @@ impl Report for SweepReport {
                     num(p.entropy),
                     num(p.specific_heat),
                     num(p.susceptibility),
+                    num(i.order_parameter),
                 ]);
             }
         }
@@ -236,17 +280,23 @@ impl Report for SweepReport {
                 l.max_cluster_sites,
                 if l.max_cluster_sites == 1 { "" } else { "s" }
             )));
-            let mut grid = Grid::new(["T", "h", "m", "U", "F", "S", "C", "χ"]);
-            for p in &l.points {
+            let mut grid = Grid::new(["T", "h", "m", "order", "U", "F", "S", "C", "χ", "note"]);
+            for (p, i) in l.points.iter().zip(&l.info) {
                 grid.push([
                     num(p.temperature),
                     num(p.field),
                     cell(p.magnetization),
+                    cell(i.order_parameter),
                     cell(p.energy),
                     cell(p.free_energy),
                     cell(p.entropy),
                     cell(p.specific_heat),
                     cell(p.susceptibility),
+                    if i.notes.is_empty() {
+                        String::new()
+                    } else {
+                        "*".into()
+                    },
                 ]);
             }
             blocks.push(Block::Table(grid));

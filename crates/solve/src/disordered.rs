@@ -1,0 +1,240 @@
+//! The disordered (translation-invariant, point-group symmetric) state of a level at
+//! (T, h), followed along temperature with warm starts: the paramagnet at h = 0, the
+//! field-polarised state in a field. Its stability at every wavevector decides Tc.
+//!
+//! The state shares every symmetry of the lattice, so it is solved on point-group
+//! orbits (the reduced level, [`rungs_lattice::Level::reduced`]) and written back on
+//! every variable. At h = 0 only the even sector is free (odd correlations vanish) and
+//! the Walsh basis is used, where the Hessian splits into even and odd blocks; in a field
+//! every variable is free and the flip basis relative to the field's direction keeps
+//! the rare cluster states precise at low temperature.
+
+use std::cell::RefCell;
+
+use rungs_lattice::{symmetry, Lattice, Level};
+
+use crate::equilibrium::{minimise, NewtonOptions};
+use crate::error::SolveError;
+use crate::functional::{Basis, Block, Functional};
+
+/// Follows the disordered state of one level in temperature.
+///
+/// Each solve is written as an offset from the last solved state (the reference of
+/// [`Functional::with_basis`]), whose cluster probabilities are exact: a paramagnet at
+/// low temperature (the chain's bond correlation 1 − 4·10⁻⁹ at T = 0.1 J, a frustrated
+/// lattice's rare all-equal triangles) keeps its small probabilities to full relative
+/// precision. A temperature too far from the last one for Newton is reached in
+/// geometric sub-steps (continuation).
+pub struct Disordered<'a> {
+    level: &'a Level,
+    field: f64,
+    basis: Basis,
+    /// The orbit-reduced level and the orbit of every variable, when the lattice has
+    /// symmetries.
+    reduced: Option<(Level, Vec<usize>)>,
+    /// The last solved temperature and the state there (reduced level).
+    warm: RefCell<Option<(f64, Warm)>>,
+    /// A temperature where a cold start is easy (well above any Tc).
+    t_high: f64,
+}
+
+/// A state as a reference and an offset, `r + δ` (reduced level).
+#[derive(Debug, Clone)]
+struct Warm {
+    reference: Vec<f64>,
+    offset: Vec<f64>,
+}
+
+impl Warm {
+    /// The same state with the reference moved onto it: `r' = fl(r + δ)`,
+    /// `δ' = (r + δ) − r'` exactly (TwoSum), so no digit of the state is lost.
+    fn rebased(reference: &[f64], offset: &[f64]) -> Warm {
+        let (reference, offset) = reference
+            .iter()
+            .zip(offset)
+            .map(|(&r, &d)| crate::dd::two_sum(r, d))
+            .unzip();
+        Warm { reference, offset }
+    }
+}
+
+/// A solved disordered state on the reduced level: the reference and the offsets.
+struct Solved {
+    reference: Option<Vec<f64>>,
+    x: Vec<f64>,
+}
+
+impl Solved {
+    fn warm(&self) -> Warm {
+        match &self.reference {
+            Some(r) => Warm::rebased(r, &self.x),
+            None => Warm::rebased(&vec![0.0; self.x.len()], &self.x),
+        }
+    }
+}
+
+impl<'a> Disordered<'a> {
+    /// The follower of `level` (of `lattice`) in field `field`.
+    pub fn new(lattice: &Lattice, level: &'a Level, field: f64) -> Disordered<'a> {
+        let ops = symmetry::level_group(level, &symmetry::point_group(lattice));
+        let reduced = (ops.len() > 1).then(|| {
+            let orbit_of = symmetry::variable_orbits(level, &ops);
+            (level.reduced(&orbit_of), orbit_of)
+        });
+        let t_high = 1.5 * crate::tc::mean_field_scale(lattice) + field.abs() + 1e-3;
+        Disordered {
+            level,
+            field,
+            basis: disordered_basis(level.sites_per_cell, field),
+            reduced,
+            warm: RefCell::new(None),
+            t_high,
+        }
+    }
+
+    /// The coordinates of the states returned.
+    pub fn basis(&self) -> &Basis {
+        &self.basis
+    }
+
+    /// The field.
+    pub fn field(&self) -> f64 {
+        self.field
+    }
+
+    /// The level.
+    pub fn level(&self) -> &'a Level {
+        self.level
+    }
+
+    /// The block where the instability is sought: the odd sector at h = 0, every
+    /// variable in a field.
+    pub fn sector(&self) -> Block {
+        if self.field == 0.0 {
+            Block::odd(self.level)
+        } else {
+            Block::all(self.level)
+        }
+    }
+
+    /// The disordered state at `t`: the functional of the full level (in the
+    /// follower's basis, with the reference the state is an offset from) and the state.
+    pub fn solve(&self, t: f64) -> Result<(Functional<'a>, Vec<f64>), SolveError> {
+        let warm = self.warm.borrow().clone();
+        let solved = match self.solve_reduced(t, warm.as_ref().map(|w| &w.1)) {
+            // A cold solution is polished once as an offset from itself, which gives
+            // its small cluster probabilities their full relative precision.
+            Ok(s) if warm.is_none() => self.solve_reduced(t, Some(&s.warm())).unwrap_or(s),
+            Ok(s) => s,
+            Err(e) => match &warm {
+                Some((tw, w)) => self.continue_from(*tw, w, t).map_err(|_| e)?,
+                None if t < self.t_high => {
+                    let high = self
+                        .solve_reduced(self.t_high, None)
+                        .map_err(|_| e.clone())?;
+                    self.continue_from(self.t_high, &high.warm(), t)
+                        .map_err(|_| e)?
+                }
+                None => return Err(e),
+            },
+        };
+        *self.warm.borrow_mut() = Some((t, solved.warm()));
+        let expand = |v: &[f64]| -> Vec<f64> {
+            match &self.reduced {
+                Some((_, o)) => o.iter().map(|&k| v[k]).collect(),
+                None => v.to_vec(),
+            }
+        };
+        let reference = solved.reference.as_deref().map(expand);
+        let f = Functional::with_basis(self.level, t, self.field, self.basis.clone(), reference);
+        Ok((f, expand(&solved.x)))
+    }
+
+    /// Reach `t` from the state at `tw` in geometric sub-steps.
+    fn continue_from(&self, tw: f64, warm: &Warm, t: f64) -> Result<Solved, SolveError> {
+        let mut last = Err(SolveError::BadTemperature { t });
+        for steps in [4usize, 16, 64] {
+            let mut current = warm.clone();
+            let mut ok = true;
+            for k in 1..=steps {
+                let tk = tw * (t / tw).powf(k as f64 / steps as f64);
+                match self.solve_reduced(tk, Some(&current)) {
+                    Ok(s) => {
+                        current = s.warm();
+                        if k == steps {
+                            return Ok(s);
+                        }
+                    }
+                    Err(e) => {
+                        last = Err(e);
+                        ok = false;
+                        break;
+                    }
+                }
+            }
+            if ok {
+                break;
+            }
+        }
+        last
+    }
+
+    fn solve_reduced(&self, t: f64, warm: Option<&Warm>) -> Result<Solved, SolveError> {
+        let lv = match &self.reduced {
+            Some((lv, _)) => lv,
+            None => self.level,
+        };
+        let block = if self.field == 0.0 {
+            Block::even(lv)
+        } else {
+            Block::all(lv)
+        };
+        let opts = NewtonOptions::default();
+        let cold = || -> Result<Solved, SolveError> {
+            let f = Functional::with_basis(lv, t, self.field, self.basis.clone(), None);
+            let m = if self.field == 0.0 {
+                0.0
+            } else {
+                (self.field / t).tanh()
+            };
+            let start = f.product_state_sites(&vec![0.9 * m; lv.sites_per_cell]);
+            let sol = minimise(&f, start, &block, opts)?;
+            Ok(Solved {
+                reference: None,
+                x: sol.x,
+            })
+        };
+        let Some(w) = warm.filter(|w| w.reference.len() == lv.variables.len()) else {
+            return cold();
+        };
+        let f = Functional::with_basis(
+            lv,
+            t,
+            self.field,
+            self.basis.clone(),
+            Some(w.reference.clone()),
+        );
+        if !f.feasible(&w.offset) {
+            return cold();
+        }
+        match minimise(&f, w.offset.clone(), &block, opts) {
+            Ok(sol) => Ok(Solved {
+                reference: Some(w.reference.clone()),
+                x: sol.x,
+            }),
+            Err(e) => cold().map_err(|_| e),
+        }
+    }
+}
+
+/// The basis of the disordered state in field `h`: Walsh at h = 0, else the flip basis
+/// relative to the field's direction on every site.
+pub fn disordered_basis(sites: usize, h: f64) -> Basis {
+    if h == 0.0 {
+        Basis::Walsh
+    } else {
+        Basis::Flip {
+            pattern: vec![h.signum(); sites],
+        }
+    }
+}

@@ -1,0 +1,495 @@
+//! The Hessian of a translation-invariant state at any wavevector: order that breaks
+//! the lattice's translations, found without enlarging the cell.
+//!
+//! Give every cell R its own copy x_c(R) of each variable. At a translation-invariant
+//! state the Hessian of the total free energy depends only on R − R', so its Fourier
+//! transform is a small Hermitian matrix per wavevector q (units of the reciprocal
+//! primitive vectors, so that `e^{2πi q·R}` with R in cell coordinates):
+//!
+//! ```text
+//! H_cd(q) = Σ_γ Σ_{k: var(k)=c} Σ_{l: var(l)=d} K_γ(k, l) e^{2πi q·(t_l − t_k)}
+//!         + Σ_{factorised bonds a–b, offset δ} c_ab e^{2πi q·δ}   (+ Hermitian partner)
+//! ```
+//!
+//! where k, l run over the subsets of region γ, `var(k)` is the variable of subset k and
+//! `t_k` the cell of its canonical placement inside the region (the cell of its first
+//! site), and `K_γ(k, l)` the region's Hessian kernel ([`RegionKernel`]). `H(0)` is the
+//! uniform Hessian. The translation-invariant state is stable while every `H(q)` is
+//! positive definite; Tc is where the smallest eigenvalue over q reaches zero, that q is
+//! the ordering wavevector and the eigenvector the ordering pattern. Site-level check:
+//! `λ(q) = T/(1 − m²) − J(q)` (mean field).
+
+use std::collections::HashMap;
+
+use nalgebra::{Complex, DMatrix, DVector};
+use rungs_lattice::symmetry::SiteMap;
+use rungs_lattice::{Cell, Cluster, Lattice, Level};
+
+use crate::functional::{Block, Functional, RegionKernel};
+use crate::linalg;
+
+/// A wavevector in units of the reciprocal primitive vectors (unused components 0).
+pub type Wavevector = [f64; 3];
+
+/// `e^{2πi q·t}`.
+#[inline]
+pub fn phase(q: &Wavevector, t: &Cell) -> Complex<f64> {
+    let a = std::f64::consts::TAU * (q[0] * t[0] as f64 + q[1] * t[1] as f64 + q[2] * t[2] as f64);
+    Complex::new(a.cos(), a.sin())
+}
+
+/// Whether every `e^{2πi q·t}` is real (every component of q is 0 or 1/2).
+pub fn is_real(q: &Wavevector) -> bool {
+    q.iter().all(|&c| {
+        let c2 = (2.0 * c).rem_euclid(2.0);
+        c2.abs() < 1e-12 || (c2 - 1.0).abs() < 1e-12 || (c2 - 2.0).abs() < 1e-12
+    })
+}
+
+/// The Fourier-space Hessian of a translation-invariant state, on a block of variables
+/// (the odd sector of a paramagnet at h = 0, every variable in a field).
+pub struct QHessian<'f> {
+    kernels: Vec<RegionKernel<'f>>,
+    /// Per region, per subset mask: the cell of the subset's first site.
+    offsets: Vec<Vec<Cell>>,
+    /// Factorised bonds: (variable a, variable b, coefficient, cell offset of b).
+    quad: Vec<(usize, usize, f64, Cell)>,
+    block: Block,
+    /// `D^{-1/2}` per block row (all ones when unscaled).
+    row_scale: Vec<f64>,
+}
+
+/// The lowest eigenvalue of `H(q)` and its unit eigenvector (on the block).
+#[derive(Debug, Clone)]
+pub struct LowestMode {
+    /// Smallest eigenvalue.
+    pub value: f64,
+    /// Its eigenvector, unit norm, on the block's variables.
+    pub vector: DVector<Complex<f64>>,
+}
+
+impl<'f> QHessian<'f> {
+    /// Prepare `H(q)` of functional `f` (on a level of `lattice`) at the
+    /// translation-invariant state `x`, on `block`. `None` if `x` is infeasible.
+    pub fn new(
+        f: &'f Functional,
+        lattice: &Lattice,
+        x: &[f64],
+        block: Block,
+        precise: bool,
+    ) -> Option<QHessian<'f>> {
+        let kernels = f.region_kernels(x, precise)?;
+        let offsets = f
+            .level()
+            .active_regions()
+            .map(|r| {
+                let n = r.cluster.len();
+                (0..1usize << n)
+                    .map(|mask| {
+                        if mask == 0 {
+                            [0; 3]
+                        } else {
+                            r.cluster.site(mask.trailing_zeros() as usize).1
+                        }
+                    })
+                    .collect()
+            })
+            .collect();
+        let bonds = lattice.bonds();
+        let quad = f
+            .quadratic_terms()
+            .iter()
+            .zip(f.quadratic_bonds())
+            .map(|(&(a, b, c), &bi)| (a, b, c, bonds[bi].cell))
+            .collect();
+        let row_scale = vec![1.0; block.vars.len()];
+        Some(QHessian {
+            kernels,
+            offsets,
+            quad,
+            block,
+            row_scale,
+        })
+    }
+
+    /// [`QHessian::new`] for the congruent matrix `D^{-1/2} H(q) D^{-1/2}`, D the diagonal
+    /// that the positive (maximal-cluster) regions alone give each variable. Congruence
+    /// keeps the inertia, so the wavevectors and temperature where an eigenvalue crosses
+    /// zero are those of H(q); but the scaled entries are O(1) at any temperature, where
+    /// H(q)'s span the cluster probabilities' range (a field-polarised state at low T has
+    /// entries ~1/p ~ 10¹⁴ next to a soft eigenvalue ~10⁻²) and a dense eigensolver's
+    /// error `ε‖H‖` would swamp the soft one.
+    pub fn scaled(
+        f: &'f Functional,
+        lattice: &Lattice,
+        x: &[f64],
+        block: Block,
+        precise: bool,
+    ) -> Option<QHessian<'f>> {
+        let mut qh = QHessian::new(f, lattice, x, block, precise)?;
+        let mut diag = vec![0.0; qh.block.vars.len()];
+        for k in qh.kernels.iter().filter(|k| k.scale > 0.0) {
+            for mask in 1..1usize << k.n {
+                let row = qh.block.pos[k.vars[mask] as usize];
+                if row != usize::MAX {
+                    diag[row] += k.entry(mask, mask);
+                }
+            }
+        }
+        if diag.iter().any(|&d| !(d > 0.0 && d.is_finite())) {
+            return None;
+        }
+        qh.row_scale = diag.iter().map(|d| 1.0 / d.sqrt()).collect();
+        Some(qh)
+    }
+
+    /// `D^{-1/2}` per row of the block (ones for an unscaled matrix).
+    pub fn row_scale(&self) -> &[f64] {
+        &self.row_scale
+    }
+
+    /// The block the matrices act on.
+    pub fn block(&self) -> &Block {
+        &self.block
+    }
+
+    /// `H(q)` on the block (complex Hermitian).
+    pub fn matrix(&self, q: &Wavevector) -> DMatrix<Complex<f64>> {
+        let m = self.block.vars.len();
+        let mut h = DMatrix::<Complex<f64>>::zeros(m, m);
+        let mut rows = Vec::new();
+        for (k, offs) in self.kernels.iter().zip(&self.offsets) {
+            rows.clear();
+            for (mask, t) in offs.iter().enumerate().skip(1) {
+                let row = self.block.pos[k.vars[mask] as usize];
+                if row != usize::MAX {
+                    rows.push((mask, row, phase(q, t) * self.row_scale[row]));
+                }
+            }
+            for &(c, rc, pc) in &rows {
+                let pc = pc.conj();
+                for &(d, rd, pd) in &rows {
+                    h[(rc, rd)] += pc * pd * k.entry(c, d);
+                }
+            }
+        }
+        for &(a, b, c, cell) in &self.quad {
+            let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
+            if pa != usize::MAX && pb != usize::MAX {
+                let ph = phase(q, &cell) * (c * self.row_scale[pa] * self.row_scale[pb]);
+                h[(pa, pb)] += ph;
+                h[(pb, pa)] += ph.conj();
+            }
+        }
+        h
+    }
+
+    /// `H(q)` for a wavevector whose phases are all real (see [`is_real`]).
+    fn real_matrix(&self, q: &Wavevector) -> DMatrix<f64> {
+        let m = self.block.vars.len();
+        let mut h = DMatrix::<f64>::zeros(m, m);
+        let mut rows = Vec::new();
+        for (k, offs) in self.kernels.iter().zip(&self.offsets) {
+            rows.clear();
+            for (mask, t) in offs.iter().enumerate().skip(1) {
+                let row = self.block.pos[k.vars[mask] as usize];
+                if row != usize::MAX {
+                    rows.push((mask, row, phase(q, t).re.signum() * self.row_scale[row]));
+                }
+            }
+            for &(c, rc, pc) in &rows {
+                for &(d, rd, pd) in &rows {
+                    h[(rc, rd)] += pc * pd * k.entry(c, d);
+                }
+            }
+        }
+        for &(a, b, c, cell) in &self.quad {
+            let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
+            if pa != usize::MAX && pb != usize::MAX {
+                let ph = phase(q, &cell).re.signum() * c * self.row_scale[pa] * self.row_scale[pb];
+                h[(pa, pb)] += ph;
+                h[(pb, pa)] += ph;
+            }
+        }
+        h
+    }
+
+    /// The smallest eigenvalue of `H(q)` and its eigenvector.
+    pub fn lowest(&self, q: &Wavevector) -> LowestMode {
+        if self.block.vars.is_empty() {
+            return LowestMode {
+                value: f64::INFINITY,
+                vector: DVector::zeros(0),
+            };
+        }
+        let n = self.block.vars.len();
+        let failed = || LowestMode {
+            value: f64::NAN,
+            vector: DVector::zeros(n),
+        };
+        if is_real(q) {
+            match linalg::lowest_real(&self.real_matrix(q)) {
+                Some((value, v)) => LowestMode {
+                    value,
+                    vector: v.map(|x| Complex::new(x, 0.0)),
+                },
+                None => failed(),
+            }
+        } else {
+            match linalg::lowest_complex(&self.matrix(q)) {
+                Some((value, vector)) => LowestMode { value, vector },
+                None => failed(),
+            }
+        }
+    }
+
+    /// The smallest eigenvalue of `H(q)` only.
+    pub fn lowest_value(&self, q: &Wavevector) -> f64 {
+        if self.block.vars.is_empty() {
+            return f64::INFINITY;
+        }
+        if is_real(q) {
+            linalg::min_eigenvalue_real(&self.real_matrix(q))
+        } else {
+            linalg::min_eigenvalue_complex(&self.matrix(q))
+        }
+    }
+
+    /// Whether `H(q)` is positive definite (one Cholesky factorisation).
+    pub fn is_positive_definite(&self, q: &Wavevector) -> bool {
+        self.is_positive_definite_above(q, 0.0)
+    }
+
+    /// Whether every eigenvalue of `H(q)` exceeds `shift` (Cholesky of `H(q) − shift·I`).
+    pub fn is_positive_definite_above(&self, q: &Wavevector, shift: f64) -> bool {
+        if self.block.vars.is_empty() {
+            return true;
+        }
+        if is_real(q) {
+            let mut m = self.real_matrix(q);
+            for i in 0..m.nrows() {
+                m[(i, i)] -= shift;
+            }
+            linalg::positive_definite_real(&m)
+        } else {
+            let mut m = self.matrix(q);
+            for i in 0..m.nrows() {
+                m[(i, i)] -= shift;
+            }
+            linalg::positive_definite_complex(&m)
+        }
+    }
+}
+
+/// The modes at q that every operation of the little group of q leaves unchanged: one
+/// column per orbit of variables, `b_O = Σ_{v∈O} a_v e_v / √|O|` with the phases
+/// `a_{g(v)} = a_v e^{−2πi q·t}` (t the cell translation that brings the image cluster
+/// to its canonical place). Orbits on which two operations disagree carry no symmetric
+/// mode and are dropped. The ferromagnetic, Néel and layered orders lie in this subspace;
+/// every search on it is checked on the full `H(q)` afterwards.
+#[derive(Debug, Clone)]
+pub struct Projection {
+    /// Per row of the block: (column, coefficient), column `usize::MAX` when dropped.
+    rows: Vec<(usize, Complex<f64>)>,
+    columns: usize,
+}
+
+impl Projection {
+    /// The symmetric subspace of `block` (a block of `level`'s variables) at q under the
+    /// operations `ops` (the level's point group).
+    pub fn new(
+        level: &Level,
+        ops: &[SiteMap],
+        q: &Wavevector,
+        block: &crate::functional::Block,
+    ) -> Projection {
+        let index: HashMap<&Cluster, usize> = level
+            .variables
+            .iter()
+            .enumerate()
+            .map(|(i, c)| (c, i))
+            .collect();
+        let little: Vec<&SiteMap> = ops.iter().filter(|op| fixes(op, q)).collect();
+        let mut rows = vec![(usize::MAX, Complex::new(0.0, 0.0)); block.vars.len()];
+        let mut done = vec![false; level.variables.len()];
+        let mut columns = 0;
+        for &v0 in &block.vars {
+            if done[v0] {
+                continue;
+            }
+            let mut members: Vec<(usize, Complex<f64>)> = Vec::new();
+            let mut consistent = true;
+            for op in &little {
+                let mut img: Vec<(Cell, usize)> = level.variables[v0]
+                    .sites()
+                    .map(|(a, c)| {
+                        let (b, d) = op.apply(a, c);
+                        (d, b)
+                    })
+                    .collect();
+                img.sort_unstable();
+                let t = img[0].0;
+                let canon = Cluster::canonical(
+                    img.iter()
+                        .map(|&(c, b)| (b, [c[0] - t[0], c[1] - t[1], c[2] - t[2]])),
+                );
+                let Some(&w) = index.get(&canon) else {
+                    consistent = false;
+                    break;
+                };
+                let a = phase(q, &t).conj();
+                match members.iter().find(|m| m.0 == w) {
+                    Some(m) => {
+                        if (m.1 - a).norm() > 1e-9 {
+                            consistent = false;
+                        }
+                    }
+                    None => members.push((w, a)),
+                }
+            }
+            for &(w, _) in &members {
+                done[w] = true;
+            }
+            if !consistent || members.iter().any(|m| block.pos[m.0] == usize::MAX) {
+                continue;
+            }
+            let norm = 1.0 / (members.len() as f64).sqrt();
+            for (w, a) in members {
+                rows[block.pos[w]] = (columns, a * norm);
+            }
+            columns += 1;
+        }
+        Projection { rows, columns }
+    }
+
+    /// Number of symmetric modes.
+    pub fn len(&self) -> usize {
+        self.columns
+    }
+
+    /// Whether there is none.
+    pub fn is_empty(&self) -> bool {
+        self.columns == 0
+    }
+
+    /// A vector of the subspace written on the block's rows.
+    pub fn expand(&self, y: &DVector<Complex<f64>>) -> DVector<Complex<f64>> {
+        DVector::from_iterator(
+            self.rows.len(),
+            self.rows.iter().map(|&(c, a)| {
+                if c == usize::MAX {
+                    Complex::new(0.0, 0.0)
+                } else {
+                    a * y[c]
+                }
+            }),
+        )
+    }
+}
+
+/// Whether `op` maps q to itself (q ↦ R⁻ᵀ q, modulo reciprocal lattice vectors); the
+/// test `q·(R n) ≡ q·n` on the unit cells n is equivalent.
+fn fixes(op: &SiteMap, q: &Wavevector) -> bool {
+    (0..3).all(|k| {
+        let mut e = [0i32; 3];
+        e[k] = 1;
+        let r = &op.rot;
+        let img = [r[0][k], r[1][k], r[2][k]];
+        let d = q[0] * (img[0] - e[0]) as f64
+            + q[1] * (img[1] - e[1]) as f64
+            + q[2] * (img[2] - e[2]) as f64;
+        let d = d.rem_euclid(1.0);
+        d < 1e-9 || d > 1.0 - 1e-9
+    })
+}
+
+impl QHessian<'_> {
+    /// `B† H(q) B` on the symmetric subspace of `proj`.
+    pub fn projected_matrix(&self, q: &Wavevector, proj: &Projection) -> DMatrix<Complex<f64>> {
+        let m = proj.columns;
+        let mut h = DMatrix::<Complex<f64>>::zeros(m, m);
+        let mut rows = Vec::new();
+        for (k, offs) in self.kernels.iter().zip(&self.offsets) {
+            rows.clear();
+            for (mask, t) in offs.iter().enumerate().skip(1) {
+                let row = self.block.pos[k.vars[mask] as usize];
+                if row != usize::MAX {
+                    let (col, a) = proj.rows[row];
+                    if col != usize::MAX {
+                        rows.push((mask, col, phase(q, t) * a * self.row_scale[row]));
+                    }
+                }
+            }
+            for &(c, rc, pc) in &rows {
+                let pc = pc.conj();
+                for &(d, rd, pd) in &rows {
+                    h[(rc, rd)] += pc * pd * k.entry(c, d);
+                }
+            }
+        }
+        for &(a, b, c, cell) in &self.quad {
+            let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
+            if pa == usize::MAX || pb == usize::MAX {
+                continue;
+            }
+            let ((ca, aa), (cb, ab)) = (proj.rows[pa], proj.rows[pb]);
+            if ca != usize::MAX && cb != usize::MAX {
+                let ph = phase(q, &cell) * self.row_scale[pa] * self.row_scale[pb];
+                h[(ca, cb)] += aa.conj() * ab * ph * c;
+                h[(cb, ca)] += ab.conj() * aa * ph.conj() * c;
+            }
+        }
+        h
+    }
+
+    /// The smallest eigenvalue on the symmetric subspace and its eigenvector written on
+    /// the block.
+    pub fn projected_lowest(&self, q: &Wavevector, proj: &Projection) -> LowestMode {
+        if proj.is_empty() {
+            return LowestMode {
+                value: f64::INFINITY,
+                vector: DVector::zeros(self.block.vars.len()),
+            };
+        }
+        match linalg::lowest_complex(&self.projected_matrix(q, proj)) {
+            Some((value, y)) => LowestMode {
+                value,
+                vector: proj.expand(&y),
+            },
+            None => LowestMode {
+                value: f64::NAN,
+                vector: DVector::zeros(self.block.vars.len()),
+            },
+        }
+    }
+
+    /// The smallest eigenvalue on the symmetric subspace.
+    pub fn projected_lowest_value(&self, q: &Wavevector, proj: &Projection) -> f64 {
+        if proj.is_empty() {
+            return f64::INFINITY;
+        }
+        linalg::min_eigenvalue_complex(&self.projected_matrix(q, proj))
+    }
+}
+
+/// The mean-field coupling matrix at q, `J_ab(q) = Σ_{bonds a–b, offset δ} J e^{2πi q·δ}`
+/// (+ Hermitian partner); its largest eigenvalue over q is the site-level Tc at h = 0.
+pub fn coupling_matrix(lattice: &Lattice, q: &Wavevector) -> DMatrix<Complex<f64>> {
+    let n = lattice.sites_per_cell();
+    let mut m = DMatrix::<Complex<f64>>::zeros(n, n);
+    for b in lattice.bonds() {
+        let ph = phase(q, &b.cell);
+        m[(b.from, b.to)] += ph * b.j;
+        m[(b.to, b.from)] += ph.conj() * b.j;
+    }
+    m
+}
+
+/// The largest eigenvalue of `J(q)`.
+pub fn coupling_top(lattice: &Lattice, q: &Wavevector) -> f64 {
+    coupling_matrix(lattice, q)
+        .symmetric_eigenvalues()
+        .iter()
+        .copied()
+        .fold(f64::NEG_INFINITY, f64::max)
+}
