@@ -81,7 +81,7 @@ impl Ladder {
         };
         let names = climb::rung_names(lattice, options.up_to, &mut notes)?;
         let bar = if options.progress {
-            Progress::new(names.len() as u64, "ladder")
+            Progress::levels(names.len() as u64, "ladder: levels done")
         } else {
             Progress::hidden()
         };
@@ -124,7 +124,7 @@ pub fn run(args: &LadderArgs, out: &mut Output) -> Result<(), CliError> {
     };
     let ladder = Ladder::compute(&lattice, options)?;
     if let Some(path) = &args.plot {
-        crate::plot::ladder::write(path, &ladder)?;
+        crate::plot::file::write(path, &ladder)?;
     }
     out.emit(&ladder)
 }

@@ -57,9 +57,11 @@ pub fn run(args: &SweepArgs, out: &mut Output) -> Result<(), CliError> {
         .map(|name| sweep_level(&lattice, name, temps, &fields, want_tc, &progress))
         .collect::<Result<Vec<_>, _>>()?;
     progress.finish();
-    let report = SweepReport::new(&lattice, fields, levels, args.plot.is_some());
-    if let Some(path) = &args.plot {
-        crate::plot::sweep::write(path, &report.figure())?;
+    let panels = args.panels.clone().unwrap_or_default();
+    let plotted = args.plot.as_ref().map(|_| panels.0.as_slice());
+    let report = SweepReport::new(&lattice, fields, levels, plotted);
+    if let (Some(path), Some(panels)) = (&args.plot, plotted) {
+        crate::plot::file::write(path, &report.figure(panels))?;
     }
     out.emit(&report)
 }
@@ -109,6 +111,8 @@ pub fn sweep_level(
     want_tc: bool,
     progress: &Progress,
 ) -> Result<LevelSweep, CliError> {
+    let line = progress.line(&format!("level `{name}`"));
+    line.stage("building clusters");
     let level = match Level::build(lattice, name) {
         Ok(level) => level,
         Err(e @ LatticeError::ClusterTooLarge { .. }) => {
@@ -118,6 +122,7 @@ pub fn sweep_level(
         }
         Err(e) => return Err(e.into()),
     };
+    line.stage("sweeping");
     let tick = || progress.inc(1);
     let results: Vec<Result<Observables, Omitted>> =
         match rungs_solve::sweep(&level, temps, fields, &tick) {
@@ -141,12 +146,14 @@ pub fn sweep_level(
         }
     }
     let tc = if want_tc {
+        line.stage("Tc (for the plot)");
         critical_temperature(lattice, &level, TcOptions::default())
             .ok()
             .and_then(|cp| cp.tc)
     } else {
         None
     };
+    line.finish();
     Ok(LevelSweep {
         level: name.to_string(),
         max_cluster_sites: level.max_cluster_sites(),

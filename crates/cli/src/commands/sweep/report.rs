@@ -10,7 +10,19 @@ use serde_json::{json, Map, Value};
 use super::{LevelSweep, COLUMNS};
 use crate::commands::tc::{order_note, NOT_BOUNDS_NOTE, ONE_D_NOTE};
 use crate::output::{fixed, num, Block, Grid, Report, TextDoc};
-use crate::plot::sweep::{LevelCurves, SweepFigure};
+use crate::plot::sweep::{LevelCurves, Quantity, SweepFigure};
+
+/// Table header of the susceptibility: the response to the field, not `mc`'s χ′.
+pub const CHI: &str = "χ = ∂m/∂h";
+
+/// What the specific heat and the susceptibility of `sweep` are (JSON `definitions`).
+pub const DEFINITIONS: [(&str, &str); 2] = [
+    ("specific_heat", "dU/dT at fixed h, per site"),
+    (
+        "susceptibility",
+        "dm/dh at fixed T, per site (the response to the field); not mc's N(<m^2> - <|m|>^2)/T",
+    ),
+];
 
 /// A bond as reported beside its correlation.
 #[derive(Debug, Clone)]
@@ -41,7 +53,7 @@ impl SweepReport {
         lattice: &Lattice,
         fields: Vec<f64>,
         levels: Vec<LevelSweep>,
-        plotted: bool,
+        plotted: Option<&[Quantity]>,
     ) -> SweepReport {
         let site_names: Vec<String> = lattice.basis().iter().map(|s| s.name.clone()).collect();
         let bonds = lattice
@@ -69,10 +81,11 @@ impl SweepReport {
         report
     }
 
-    fn make_notes(&self, lattice: &Lattice, plotted: bool) -> Vec<String> {
+    fn make_notes(&self, lattice: &Lattice, plotted: Option<&[Quantity]>) -> Vec<String> {
         let mut notes = vec![
             "per site, k_B = 1: T in units of J/k_B; m magnetisation, U energy, F free energy (J), \
-             S entropy (k_B), C specific heat (k_B), χ = ∂m/∂h."
+             S entropy (k_B), C specific heat (k_B), χ = ∂m/∂h (the response to the field; not `mc`'s \
+             χ′ = N(⟨m²⟩ − ⟨|m|⟩²)/T, which is about 0.36 χ above Tc)."
                 .to_string(),
             "at h = 0 below a level's Tc the ordered branch with m > 0 is reported; each point is \
              warm-started from the previous temperature."
@@ -107,20 +120,41 @@ impl SweepReport {
                 ));
             }
         }
-        if plotted {
-            if let Some(form) = &self.exact {
-                notes.push(format!(
-                    "plot: exact curves of the {} lattice from {}.",
-                    form.name(),
-                    form.source()
-                ));
-            }
+        if let (Some(panels), Some(form)) = (plotted, &self.exact) {
+            notes.extend(self.exact_note(form, panels));
         }
         notes
     }
 
-    /// What the plot draws.
-    pub fn figure(&self) -> SweepFigure<'_> {
+    /// The note citing the exact curves the figure draws, naming the fields where the
+    /// closed form gives none; no note when it draws none.
+    fn exact_note(&self, form: &ClosedForm, panels: &[Quantity]) -> Option<String> {
+        let drawn = self.figure(panels).exact_fields();
+        if drawn.is_empty() {
+            return None;
+        }
+        let list = |hs: &[f64]| hs.iter().map(|h| num(*h)).collect::<Vec<_>>().join(", ");
+        let missing: Vec<f64> = self
+            .fields
+            .iter()
+            .copied()
+            .filter(|h| !drawn.contains(h))
+            .collect();
+        let none = if missing.is_empty() {
+            String::new()
+        } else {
+            format!("; none at h = {} (no closed form there)", list(&missing))
+        };
+        Some(format!(
+            "plot: exact curves of the {} lattice at h = {} from {}{none}.",
+            form.name(),
+            list(&drawn),
+            form.source()
+        ))
+    }
+
+    /// What the plot draws, in `panels`.
+    pub fn figure<'a>(&'a self, panels: &'a [Quantity]) -> SweepFigure<'a> {
         SweepFigure {
             lattice: &self.lattice,
             levels: self
@@ -134,6 +168,7 @@ impl SweepReport {
                 .collect(),
             fields: &self.fields,
             exact: self.exact,
+            panels,
         }
     }
 
@@ -200,6 +235,7 @@ impl Report for SweepReport {
             "points": points,
             "omitted": omitted,
             "notes": self.notes,
+            "definitions": DEFINITIONS.iter().map(|(k, v)| ((*k).to_string(), json!(v))).collect::<Map<_, _>>(),
         }))
     }
 
@@ -236,7 +272,7 @@ impl Report for SweepReport {
                 l.max_cluster_sites,
                 if l.max_cluster_sites == 1 { "" } else { "s" }
             )));
-            let mut grid = Grid::new(["T", "h", "m", "U", "F", "S", "C", "χ"]);
+            let mut grid = Grid::new(["T", "h", "m", "U", "F", "S", "C", CHI]);
             for p in &l.points {
                 grid.push([
                     num(p.temperature),
