@@ -1,4 +1,4 @@
-//! `rungs ladder LATTICE [--up-to N] [--mc] [--plot FILE.svg]`: how Tc converges as the
+//! `rungs ladder LATTICE [--up-to N] [--mc] [--plot FILE.svg|png]`: how Tc converges as the
 //! clusters grow, each rung against the reference, with extrapolations.
 //!
 //! The steps, one file each:

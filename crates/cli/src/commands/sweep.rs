@@ -1,5 +1,5 @@
 //! `rungs sweep LATTICE --levels a,b --temps T0:T1:dT [--field h | --fields ...]
-//! [--plot FILE.svg]`: equilibrium thermodynamics per site along a temperature path,
+//! [--plot FILE.svg|png [--panels ...]]`: equilibrium thermodynamics per site along a temperature path,
 //! one row per (level, temperature, field).
 //!
 //! Each level is swept by the engine (`rungs_solve::sweep`: fields outermost, the
@@ -12,9 +12,9 @@
 //! re-run point by point so the other points survive. Any other engine failure (no
 //! convergence, a level too large) stops the command with exit status 1.
 //!
-//! With `--plot FILE.svg` the sweep is also drawn ([`crate::plot::sweep`]), with each
-//! level's Tc marked when the sweep includes h = 0 and the exact curves of a closed form
-//! recognised from the lattice's bonds.
+//! With `--plot FILE.svg` (or `.png`) the sweep is also drawn ([`crate::plot::sweep`]),
+//! with each level's Tc marked when the sweep includes h = 0 and the exact curves of a
+//! closed form recognised from the lattice's bonds.
 
 use rayon::prelude::*;
 use rungs_lattice::{Lattice, LatticeError, Level};
