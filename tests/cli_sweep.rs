@@ -445,6 +445,8 @@ fn range_points_print_as_the_user_wrote_them() {
         "1.5:4.5:0.01",
     ]);
     assert!(table.contains("\n  4.49  0  "), "{table}");
+    // The susceptibility column says which susceptibility it is (not `mc`'s χ′).
+    assert!(table.contains("χ = ∂m/∂h"), "{table}");
     assert!(!table.contains("4.489999"), "{table}");
 }
 

@@ -422,6 +422,51 @@ fn draw_coherent_anomaly<DB: DrawingBackend>(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::commands::ladder::RungResult;
+
+    #[test]
+    fn the_tc_axis_ends_on_a_tick_above_the_top_rung() {
+        let rung = |level: &str, sites: usize, tc: f64| RungResult {
+            level: level.into(),
+            max_cluster_sites: sites,
+            variables: 1,
+            tc: Some(tc),
+            amplitude: None,
+            mode: None,
+            searched_down_to: None,
+            seconds: 0.0,
+            skipped: None,
+        };
+        // Figure input only (no physics checked here): the site, pair and plaquette Tc of
+        // lattices/square.yaml as `rungs ladder` prints them.
+        let ladder = Ladder {
+            lattice: "square".into(),
+            dimension: 2,
+            reference: None,
+            rungs: vec![
+                rung("site", 1, 4.0),
+                rung("pair", 2, 2.885),
+                rung("plaquette", 4, 2.4257),
+            ],
+            extrapolations: Vec::new(),
+            notes: Vec::new(),
+        };
+        let (lo, hi, ticks) = y_range(&ladder);
+        let step = (hi - lo) / (ticks - 1) as f64;
+        assert!(hi >= 4.0 && lo <= 2.4257, "{lo}..{hi}");
+        // The top of the axis is a tick: a whole number of 1-2-5 steps from the bottom,
+        // and the bottom a multiple of the step.
+        assert!(
+            (lo / step - (lo / step).round()).abs() < 1e-6,
+            "{lo} {step}"
+        );
+        let mantissa = step / 10f64.powf(step.log10().floor());
+        assert!(
+            [1.0, 2.0, 5.0].iter().any(|m| (mantissa - m).abs() < 1e-6),
+            "{step}"
+        );
+        assert!(hi - 4.0 < 2.0 * step, "no needless empty band: {hi}");
+    }
 
     #[test]
     fn short_sources() {
