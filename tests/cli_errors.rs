@@ -195,6 +195,42 @@ fn unknown_level() {
 }
 
 #[test]
+fn misspelt_level_gets_a_suggestion() {
+    fails_with_2(
+        &["tc", "lattices/square.yaml", "--levels", "plaquete"],
+        &["no level named `plaquete`", "did you mean `plaquette`?"],
+    );
+}
+
+#[test]
+fn figure_files_other_than_svg_and_png_are_refused_up_front() {
+    let dir = tempfile::tempdir().unwrap();
+    let pdf = dir.path().join("out.pdf");
+    let pdf = pdf.to_str().unwrap();
+    fails_with_2(
+        &["ladder", "lattices/square.yaml", "--plot", pdf],
+        &["out.pdf", ".svg, .png"],
+    );
+    let sweep = |extra: &[&'static str], plot: &str, mentions: &[&str]| {
+        let mut args = vec![
+            "sweep",
+            "lattices/square.yaml",
+            "--levels",
+            "pair",
+            "--temps",
+            "2",
+            "--plot",
+            plot,
+        ];
+        args.extend_from_slice(extra);
+        fails_with_2(&args, mentions);
+    };
+    sweep(&[], pdf, &[".svg, .png"]);
+    sweep(&["--panels", "m,q"], "x.svg", &["`q` is not a panel"]);
+    assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
+}
+
+#[test]
 fn bad_arguments() {
     fails_with_2(
         &["inspect", "lattices/square.yaml", "--format", "xml"],

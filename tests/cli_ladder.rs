@@ -419,11 +419,34 @@ fn plot_has_one_marker_per_rung() {
         "block3 (9)",
         "Onsager (1944)",
         "1 / N",
+        // The coherent-anomaly panel: the ln–ln view the extrapolation rests on.
+        "coherent anomaly: the fit behind Tc*",
+        "ln(Tc_n − Tc*)",
+        "bars: Tc* = ",
     ] {
         assert!(svg.contains(name), "figure lacks `{name}`");
     }
+    // Its points are the four cluster rungs of the fit: squares (10 px), not circles,
+    // plus the legend's sample.
+    assert_eq!(
+        svg.matches(r#"width="10" height="10""#).count(),
+        4 + 1,
+        "one square per cluster rung in the coherent-anomaly panel"
+    );
     // Nothing left behind but the figure.
     assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 1);
+}
+
+#[test]
+fn plot_png_by_extension() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("ladder.png");
+    ladder(
+        "lattices/square.yaml",
+        &["--up-to", "4", "--plot", path.to_str().unwrap()],
+    );
+    let png = std::fs::read(&path).unwrap();
+    assert_eq!(&png[..8], b"\x89PNG\r\n\x1a\n", "not a PNG");
 }
 
 #[test]

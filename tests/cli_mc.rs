@@ -1,20 +1,13 @@
-//! `rungs mc` end to end: the JSON contract, reproducibility, and bad input.
+//! `rungs mc` end to end: the JSON contract, error bars and named susceptibility in every
+//! format, reproducibility, and bad input refused before any torus is built.
 
-use assert_cmd::Command;
+mod common;
+
+use common::{ok, rungs};
 use serde_json::Value;
 
 fn mc(args: &[&str]) -> Value {
-    let out = Command::cargo_bin("rungs")
-        .unwrap()
-        .args(args)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).unwrap()
+    serde_json::from_str(&ok(args)).unwrap()
 }
 
 const ARGS: [&str; 12] = [
@@ -84,9 +77,8 @@ fn same_seed_same_numbers() {
 
 #[test]
 fn too_few_sweeps_is_bad_input() {
-    let out = Command::cargo_bin("rungs")
-        .unwrap()
-        .args([
+    refused(
+        &[
             "mc",
             "lattices/square.yaml",
             "--sizes",
@@ -95,10 +87,87 @@ fn too_few_sweeps_is_bad_input() {
             "2.0",
             "--sweeps",
             "3",
-        ])
-        .output()
+        ],
+        &["sweeps"],
+    );
+}
+
+#[test]
+fn every_format_has_the_error_bars_and_names_the_susceptibility() {
+    let args = |format: &'static str| {
+        let mut a = ARGS.to_vec();
+        *a.last_mut().unwrap() = format;
+        a
+    };
+    let csv = ok(&args("csv"));
+    let header: Vec<&str> = csv.lines().next().unwrap().split(',').collect();
+    for column in [
+        "specific_heat",
+        "specific_heat_error",
+        "susceptibility_abs_m",
+        "susceptibility_abs_m_error",
+    ] {
+        assert!(header.contains(&column), "no `{column}` in {header:?}");
+    }
+    assert!(!header.contains(&"susceptibility"), "{header:?}");
+    let table = ok(&args("table"));
+    let head = table.lines().find(|l| l.contains("Binder U4")).unwrap();
+    assert!(head.contains("χ′ = N(⟨m²⟩−⟨|m|⟩²)/T"), "{head}");
+    // energy, |m|, U4, C and χ′: five `±` per row.
+    let row = table
+        .lines()
+        .find(|l| l.trim_start().starts_with("8 "))
         .unwrap();
-    assert_eq!(out.status.code(), Some(2));
+    assert_eq!(row.matches('±').count(), 5, "{row}");
+    assert!(table.contains("NOT `sweep`'s χ = ∂m/∂h"), "{table}");
+    let v = mc(&ARGS);
+    let p = &v["points"][0];
+    assert!(p["specific_heat_error"].as_f64().unwrap() > 0.0);
+    assert!(p["susceptibility_error"].as_f64().unwrap() > 0.0);
+    assert!(v["definitions"]["susceptibility"]
+        .as_str()
+        .unwrap()
+        .contains("<|m|>"));
+}
+
+/// Run `mc` with `args`, expect exit status 2 and every word of `mentions` on stderr.
+fn refused(args: &[&str], mentions: &[&str]) {
+    let out = rungs().args(args).output().unwrap();
     let err = String::from_utf8_lossy(&out.stderr);
-    assert!(err.contains("sweeps") && !err.contains("panicked"), "{err}");
+    assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+    assert!(!err.contains("panicked"), "{err}");
+    for m in mentions {
+        assert!(err.contains(m), "{args:?}: no `{m}` in {err}");
+    }
+}
+
+#[test]
+fn a_torus_too_large_for_memory_is_refused_before_it_is_built() {
+    // 10^10 sites: building it would need about a terabyte.
+    refused(
+        &[
+            "mc",
+            "lattices/square.yaml",
+            "--sizes",
+            "100000",
+            "--temps",
+            "2.3",
+        ],
+        &["100000", "GiB", "limit of 8.0 GiB"],
+    );
+    // Too few sweeps is named even for a torus that could never be built (10^12 sites):
+    // the arguments are checked before anything is allocated.
+    refused(
+        &[
+            "mc",
+            "lattices/square.yaml",
+            "--sizes",
+            "1000000",
+            "--temps",
+            "2.3",
+            "--sweeps",
+            "10",
+        ],
+        &["sweeps", "at least 64"],
+    );
 }

@@ -1,8 +1,9 @@
 //! `rungs sweep` end to end: the CSV and JSON shapes of the command contract; the chain's
 //! pair level against the exact chain in a field (Ising 1925); the square lattice at
 //! T = 2 against Onsager's free energy and Yang's magnetisation, with the error shrinking
-//! along pair → plaquette → 3×3 block; the SVG of `--plot` (its structure, not its
-//! pixels); `--output` written atomically; the 1D caution.
+//! along pair → plaquette → 3×3 block; the figure of `--plot` (SVG structure, PNG
+//! signature, `--panels`, exact curves cited only where drawn); range points printed as
+//! written; `--output` written atomically; the 1D caution.
 
 use std::f64::consts::PI;
 
@@ -288,10 +289,10 @@ fn plot_is_an_svg_with_a_curve_per_level_and_panel() {
     let mut distinct = colours.clone();
     distinct.sort();
     distinct.dedup();
-    // Two levels and the exact curve (black: Onsager's F and C, Yang's m; no χ).
+    // Two levels and the exact curve (black: Onsager's U, F, S and C, Yang's m; no χ).
     assert_eq!(distinct.len(), 3, "{distinct:?}");
     for c in &distinct {
-        let want = if c == "#000000" { 3 } else { 4 };
+        let want = if c == "#000000" { 5 } else { 6 };
         assert!(
             long_by_colour(c) >= want,
             "colour {c}: {} curves",
@@ -308,6 +309,8 @@ fn plot_is_an_svg_with_a_curve_per_level_and_panel() {
         "plaquette",
         "T (J/k_B)",
         "m per site",
+        "U per site (J)",
+        "S per site (k_B)",
         "C per site (k_B)",
         "F per site (J)",
     ] {
@@ -316,7 +319,7 @@ fn plot_is_an_svg_with_a_curve_per_level_and_panel() {
             "no text `{label}` in {texts:?}"
         );
     }
-    assert!(texts.iter().any(|t| t.starts_with("χ per site")));
+    assert!(texts.iter().any(|t| t.starts_with("χ = ∂m/∂h per site")));
     assert!(
         texts
             .iter()
@@ -412,5 +415,98 @@ fn a_point_at_a_levels_tc_is_never_reported_with_invalid_response() {
             .iter()
             .any(|n| n.as_str().unwrap().contains(reason));
         assert!(noted, "omitted point without a note: {doc}");
+    }
+}
+
+#[test]
+fn range_points_print_as_the_user_wrote_them() {
+    let csv = ok(&[
+        "sweep",
+        "lattices/square.yaml",
+        "--levels",
+        "pair",
+        "--temps",
+        "2.2:2.35:0.05",
+        "--format",
+        "csv",
+    ]);
+    let temps: Vec<&str> = csv
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').nth(1).unwrap())
+        .collect();
+    assert_eq!(temps, ["2.2", "2.25", "2.3", "2.35"], "{csv}");
+    let table = ok(&[
+        "sweep",
+        "lattices/square.yaml",
+        "--levels",
+        "pair",
+        "--temps",
+        "1.5:4.5:0.01",
+    ]);
+    assert!(table.contains("\n  4.49  0  "), "{table}");
+    // The susceptibility column says which susceptibility it is (not `mc`'s χ′).
+    assert!(table.contains("χ = ∂m/∂h"), "{table}");
+    assert!(!table.contains("4.489999"), "{table}");
+}
+
+/// The `--plot` of a two-level square sweep, with `extra` arguments; the file's bytes and
+/// the report.
+fn plot(name: &str, extra: &[&str]) -> (Vec<u8>, String) {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join(name);
+    let mut args = vec![
+        "sweep",
+        "lattices/square.yaml",
+        "--levels",
+        "pair,plaquette",
+        "--temps",
+        "1.9:3.2:0.1",
+        "--plot",
+        path.to_str().unwrap(),
+    ];
+    args.extend_from_slice(extra);
+    let report = ok(&args);
+    (std::fs::read(&path).unwrap(), report)
+}
+
+#[test]
+fn plot_png_by_extension_and_panels_on_request() {
+    let (png, _) = plot("sweep.png", &[]);
+    assert_eq!(&png[..8], b"\x89PNG\r\n\x1a\n", "not a PNG");
+    let (svg, _) = plot("sweep.svg", &["--panels", "m,s"]);
+    let texts: Vec<String> = xml_elements(&String::from_utf8(svg).unwrap())
+        .into_iter()
+        .filter(|(n, _, _)| n == "text")
+        .map(|(_, _, t)| t.trim().to_string())
+        .collect();
+    assert!(texts.iter().any(|t| t == "m per site"), "{texts:?}");
+    assert!(texts.iter().any(|t| t == "S per site (k_B)"), "{texts:?}");
+    assert!(!texts.iter().any(|t| t == "C per site (k_B)"), "{texts:?}");
+}
+
+#[test]
+fn exact_curves_are_cited_only_where_the_figure_draws_them() {
+    // Onsager's square lattice has no closed form in a field (Onsager 1944): at h = 0.1
+    // alone no exact curve is drawn, so none is cited.
+    let (_, report) = plot("a.svg", &["--field", "0.1"]);
+    assert!(!report.contains("plot: exact"), "{report}");
+    let (svg, report) = plot("b.svg", &["--fields", "0,0.1"]);
+    assert!(
+        report.contains("exact curves of the square lattice at h = 0 from Onsager")
+            && report.contains("none at h = 0.1"),
+        "{report}"
+    );
+    // The legend keys the levels by colour and the fields by line style.
+    let texts: Vec<String> = xml_elements(&String::from_utf8(svg).unwrap())
+        .into_iter()
+        .filter(|(n, _, _)| n == "text")
+        .map(|(_, _, t)| t.trim().to_string())
+        .collect();
+    for label in ["pair", "plaquette", "h = 0", "h = 0.1"] {
+        assert!(
+            texts.iter().any(|t| t == label),
+            "legend lacks `{label}`: {texts:?}"
+        );
     }
 }

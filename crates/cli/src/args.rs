@@ -14,6 +14,8 @@ use clap::{Args, Parser, Subcommand};
 
 use crate::list::{parse_reals, parse_sizes, parse_temperatures, RealList, SizeList};
 use crate::output::Format;
+use crate::plot::parse_plot_path;
+use crate::plot::sweep::{parse_panels, Panels};
 
 /// Ising-type spin models on any lattice: mean field → Bethe → Kikuchi clusters,
 /// held against exact results and Monte Carlo.
@@ -33,10 +35,19 @@ pub enum Command {
     /// Critical temperature at each level (default: all levels).
     Tc(TcArgs),
     /// Equilibrium thermodynamics along a temperature path.
+    ///
+    /// Per site, at each level: m, U, F, S, C = ∂U/∂T and χ = ∂m/∂h, the response of m to
+    /// the field (not the χ′ of `rungs mc`, a different quantity).
     Sweep(SweepArgs),
     /// Convergence of Tc with cluster size, against references.
     Ladder(LadderArgs),
     /// Monte Carlo reference on finite tori of the lattice.
+    ///
+    /// Per site, each with its error bar: energy, |m|, the Binder cumulant U4,
+    /// C = N(⟨e²⟩ − ⟨e⟩²)/T² and χ′ = N(⟨m²⟩ − ⟨|m|⟩²)/T, the susceptibility from the
+    /// fluctuations of |m|. χ′ is NOT the χ = ∂m/∂h of `rungs sweep`: above Tc it is about
+    /// 0.36 χ. Memory and time are estimated, and every argument checked, before any
+    /// torus is built.
     Mc(McArgs),
 }
 
@@ -84,7 +95,7 @@ pub struct TcArgs {
 }
 
 /// `rungs sweep LATTICE --levels a,b --temps T0:T1:dT [--field h | --fields ...]
-/// [--plot FILE.svg]`.
+/// [--plot FILE.svg|FILE.png [--panels m,s,c]]`.
 #[derive(Debug, Clone, Args)]
 pub struct SweepArgs {
     /// The lattice file, `--format` and `--output`.
@@ -111,12 +122,16 @@ pub struct SweepArgs {
     /// each level's ordering wavevector).
     #[arg(long, value_parser = parse_supercell, value_name = "N1xN2[xN3]")]
     pub supercell: Option<Supercell>,
-    /// Also draw the sweep into this SVG file.
-    #[arg(long, value_name = "FILE.svg")]
+    /// Also draw the sweep into FILE: SVG or PNG, by its extension (.svg, .png).
+    #[arg(long, value_name = "FILE", value_parser = parse_plot_path)]
     pub plot: Option<PathBuf>,
+    /// Panels of the --plot figure, comma-separated, from m, u, f, s, c, chi (magnetisation,
+    /// energy, free energy, entropy, specific heat, χ = ∂m/∂h) [default: all six].
+    #[arg(long, requires = "plot", value_parser = parse_panels, value_name = "LIST")]
+    pub panels: Option<Panels>,
 }
 
-/// `rungs ladder LATTICE [--up-to N] [--mc] [--plot FILE.svg]`.
+/// `rungs ladder LATTICE [--up-to N] [--mc] [--plot FILE.svg|FILE.png]`.
 #[derive(Debug, Clone, Args)]
 pub struct LadderArgs {
     /// The lattice file, `--format` and `--output`.
@@ -133,8 +148,8 @@ pub struct LadderArgs {
     /// field-polarised phase's instability.
     #[arg(long, allow_negative_numbers = true, value_name = "H")]
     pub field: Option<f64>,
-    /// Also draw the ladder into this SVG file.
-    #[arg(long, value_name = "FILE.svg")]
+    /// Also draw the ladder into FILE: SVG or PNG, by its extension (.svg, .png).
+    #[arg(long, value_name = "FILE", value_parser = parse_plot_path)]
     pub plot: Option<PathBuf>,
 }
 
@@ -144,7 +159,8 @@ pub struct McArgs {
     /// The lattice file, `--format` and `--output`.
     #[command(flatten)]
     pub common: CommonArgs,
-    /// Linear torus sizes in cells: one value, a comma list, or a range start:stop:step.
+    /// Linear torus sizes in cells: one value, a comma list, or a range start:stop:step
+    /// (a run whose estimated memory exceeds 8 GiB is refused before it starts).
     #[arg(long, value_parser = parse_sizes, value_name = "LIST")]
     pub sizes: SizeList,
     /// Temperatures: one value, a comma list, or an inclusive range start:stop:step.

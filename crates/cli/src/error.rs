@@ -74,10 +74,7 @@ mod tests {
 
     #[test]
     fn bad_input_exits_two_and_non_convergence_one() {
-        let unknown = LatticeError::UnknownLevel {
-            name: "x".into(),
-            known: "site, pair".into(),
-        };
+        let unknown = LatticeError::unknown_level("x", &["site".into(), "pair".into()]);
         assert_eq!(CliError::from(unknown).exit_code(), 2);
         assert_eq!(CliError::Usage("bad".into()).exit_code(), 2);
         assert_eq!(

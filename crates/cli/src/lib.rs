@@ -3,7 +3,7 @@
 //! Parse, then build, then run: [`args`] holds the typed, validated arguments (clap);
 //! [`commands`] turns them into lattices and levels and runs one subcommand, handing its
 //! result to [`output`] (one exporter per format: table, CSV, JSON; atomic `--output`
-//! files); [`plot`] draws SVG figures; [`progress`] draws a bar on interactive
+//! files); [`plot`] draws SVG and PNG figures; [`progress`] draws bars and per-level lines on interactive
 //! terminals. [`main`] has the one error exit: every failure becomes
 //! `rungs: error: <what to fix>` on standard error and the exit status of
 //! [`error::CliError::exit_code`] (2 bad input, 1 no convergence).

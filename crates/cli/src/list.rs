@@ -6,7 +6,9 @@
 //! lands on `stop` within rounding (relative 1e-9 of a step), else `floor(…)`; the last
 //! point is then snapped to `stop` exactly, so `0.1:0.3:0.1` ends at `0.3`, not at
 //! `0.30000000000000004`. Points are computed as `start + k·step`, never by repeated
-//! addition, so rounding does not accumulate.
+//! addition, and rounded to the decimal places of `start` and `step` as written, so
+//! every point prints as the user would write it: `2.2:2.35:0.05` gives 2.2, 2.25, 2.3,
+//! 2.35 (not 2.3000000000000003), `1.5:4.5:0.01` ends …, 4.48, 4.49, 4.5.
 //!
 //! The functions here are clap value parsers: their `Err(String)` becomes clap's
 //! "invalid value … for '--temps'" message (exit status 2).
@@ -98,6 +100,7 @@ fn parse_range(text: &str) -> Result<Vec<f64>, String> {
             "`{text}` is not a range: write start:stop:step with three numbers, e.g. 1.5:3.5:0.01"
         ));
     };
+    let places = decimals(start).max(decimals(step));
     let (start, stop, step) = (
         parse_number(start)?,
         parse_number(stop)?,
@@ -128,13 +131,35 @@ fn parse_range(text: &str) -> Result<Vec<f64>, String> {
     if last >= MAX_POINTS {
         return Err(too_many());
     }
-    let mut points: Vec<f64> = (0..=last).map(|k| start + k as f64 * step).collect();
+    let mut points: Vec<f64> = (0..=last)
+        .map(|k| round_to(start + k as f64 * step, places))
+        .collect();
     if ends_on_stop {
         if let Some(end) = points.last_mut() {
             *end = stop;
         }
     }
     Ok(points)
+}
+
+/// Decimal places of a number as written: `0.05` → 2, `1e-3` → 3, `2.5e1` → 0, `3` → 0.
+fn decimals(item: &str) -> usize {
+    let lower = item.trim().to_ascii_lowercase();
+    let (mantissa, exponent) = match lower.split_once('e') {
+        Some((m, e)) => (m, e.parse::<i64>().unwrap_or(0)),
+        None => (lower.as_str(), 0),
+    };
+    let fraction = mantissa.split_once('.').map_or(0, |(_, f)| f.len()) as i64;
+    (fraction - exponent).clamp(0, i64::from(u16::MAX)) as usize
+}
+
+/// `x` rounded to `places` decimals: the double nearest to the decimal number, which
+/// prints as that number. Beyond 15 places a double holds no more decimals: unchanged.
+fn round_to(x: f64, places: usize) -> f64 {
+    if places > 15 {
+        return x;
+    }
+    format!("{x:.places$}").parse().unwrap_or(x)
 }
 
 #[cfg(test)]
@@ -167,6 +192,22 @@ mod tests {
         assert_eq!(parse_reals("1:100000:1").unwrap().0.len(), MAX_POINTS);
         // A one-point range.
         assert_eq!(parse_reals("2:2:0.1").unwrap().0, vec![2.0]);
+    }
+
+    #[test]
+    fn range_points_print_as_written() {
+        let r = parse_reals("2.2:2.35:0.05").unwrap().0;
+        let shown: Vec<String> = r.iter().map(|x| format!("{x}")).collect();
+        assert_eq!(shown, ["2.2", "2.25", "2.3", "2.35"]);
+        let r = parse_reals("1.5:4.5:0.01").unwrap().0;
+        assert_eq!(format!("{}", r[299]), "4.49");
+        assert!(r.iter().all(|x| format!("{x}").len() <= 4), "{r:?}");
+        // Exponents count: 1e-3 has three places.
+        let r = parse_reals("0:0.01:1e-3").unwrap().0;
+        assert_eq!(format!("{}", r[7]), "0.007");
+        assert_eq!(decimals("2.5e1"), 0);
+        assert_eq!(decimals("1.25E-1"), 3);
+        assert_eq!(decimals("-0.125"), 3);
     }
 
     #[test]

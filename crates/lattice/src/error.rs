@@ -64,11 +64,14 @@ pub enum LatticeError {
         /// The name.
         name: String,
     },
-    /// A level name that the lattice does not define.
-    #[error("no level named `{name}` (known: {known})")]
+    /// A level name that the lattice does not define (build it with
+    /// [`LatticeError::unknown_level`], which finds the suggestion).
+    #[error("no level named `{name}`{suggestion}; the known levels are: {known}")]
     UnknownLevel {
         /// Requested name.
         name: String,
+        /// `" (did you mean `x`?)"` or empty.
+        suggestion: String,
         /// Comma-separated known level names.
         known: String,
     },
@@ -358,4 +361,17 @@ pub enum LatticeError {
         /// The value as written.
         value: String,
     },
+}
+
+impl LatticeError {
+    /// [`LatticeError::UnknownLevel`] for `name`, with the closest of `known` as a
+    /// suggestion when one is near (see [`crate::suggest`]).
+    pub fn unknown_level(name: &str, known: &[String]) -> LatticeError {
+        let names: Vec<&str> = known.iter().map(String::as_str).collect();
+        LatticeError::UnknownLevel {
+            name: name.to_string(),
+            suggestion: crate::suggest::did_you_mean(name, &names),
+            known: known.join(", "),
+        }
+    }
 }

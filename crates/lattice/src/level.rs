@@ -137,10 +137,7 @@ impl Level {
                     .level_specs()
                     .iter()
                     .find(|l| l.name == name)
-                    .ok_or_else(|| LatticeError::UnknownLevel {
-                        name: name.to_string(),
-                        known: Self::names(lattice).join(", "),
-                    })?;
+                    .ok_or_else(|| LatticeError::unknown_level(name, &Self::names(lattice)))?;
                 let shapes: Vec<Cluster> = spec
                     .shapes
                     .iter()

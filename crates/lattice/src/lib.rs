@@ -23,6 +23,7 @@ pub mod error;
 pub mod level;
 pub mod model;
 pub mod spec;
+pub mod suggest;
 pub mod symmetry;
 #[cfg(test)]
 mod testutil;

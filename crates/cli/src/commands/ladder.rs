@@ -1,4 +1,4 @@
-//! `rungs ladder LATTICE [--up-to N] [--mc] [--plot FILE.svg]`: how Tc converges as the
+//! `rungs ladder LATTICE [--up-to N] [--mc] [--plot FILE.svg|png]`: how Tc converges as the
 //! clusters grow, each rung against the reference, with extrapolations.
 //!
 //! The steps, one file each:
@@ -83,7 +83,7 @@ impl Ladder {
         };
         let names = climb::rung_names(lattice, options.up_to, &mut notes)?;
         let bar = if options.progress {
-            Progress::new(names.len() as u64, "ladder")
+            Progress::levels(names.len() as u64, "ladder: levels done")
         } else {
             Progress::hidden()
         };
@@ -133,7 +133,7 @@ pub fn run(args: &LadderArgs, out: &mut Output) -> Result<(), CliError> {
     };
     let ladder = Ladder::compute(&lattice, options)?;
     if let Some(path) = &args.plot {
-        crate::plot::ladder::write(path, &ladder)?;
+        crate::plot::file::write(path, &ladder)?;
     }
     out.emit(&ladder)
 }

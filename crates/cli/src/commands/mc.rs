@@ -7,14 +7,30 @@
 //! spins as the torus has sites (Metropolis: one attempted flip per site). Each
 //! (size, temperature) point is seeded from (seed, size, temperature index), so the
 //! same seed gives the same numbers however the points are scheduled.
+//!
+//! Every argument is checked, and the run's memory and time estimated, before any torus
+//! is built (`rungs_reference::montecarlo::plan`): a torus too large for memory is
+//! refused with exit status 2 naming the limit. The susceptibility reported is
+//! χ′ = N(⟨m²⟩ − ⟨|m|⟩²)/T ([`CHI_PRIME`]), which is not `sweep`'s χ = ∂m/∂h; the CSV
+//! column says so (`susceptibility_abs_m`), JSON keeps the contract's `susceptibility`
+//! and states both definitions under `definitions`.
 
-use rungs_reference::montecarlo::{self, McConfig, McError, McResult};
+use rungs_reference::montecarlo::{self, McConfig, McError, McResult, RunPlan};
 use serde_json::{json, Value};
 
 use crate::args::McArgs;
 use crate::error::CliError;
 use crate::output::{num, Block, Grid, Output, Report, TextDoc};
-use crate::progress::Progress;
+use crate::progress::{seconds, Progress};
+
+/// Table header of the Monte Carlo susceptibility: not `sweep`'s χ = ∂m/∂h.
+pub const CHI_PRIME: &str = "χ′ = N(⟨m²⟩−⟨|m|⟩²)/T";
+
+/// What the specific heat and the susceptibility of `mc` are (JSON `definitions`).
+pub const DEFINITIONS: [(&str, &str); 2] = [
+    ("specific_heat", "N(<e^2> - <e>^2)/T^2, from energy fluctuations; the same quantity as sweep's C = dU/dT"),
+    ("susceptibility", "N(<m^2> - <|m|>^2)/T, from fluctuations of |m| (chi prime); not sweep's dm/dh, which is larger above Tc"),
+];
 
 /// Run `rungs mc`.
 pub fn run(args: &McArgs, out: &mut Output) -> Result<(), CliError> {
@@ -26,10 +42,18 @@ pub fn run(args: &McArgs, out: &mut Output) -> Result<(), CliError> {
         seed: args.seed,
         ..McConfig::default()
     };
-    let points = args.sizes.0.len() * config.temperatures.len();
+    // Every argument checked and the memory estimated before any torus is built.
+    let plan = montecarlo::plan(
+        &lattice,
+        &args.sizes.0,
+        &config,
+        rayon::current_num_threads(),
+    )
+    .map_err(mc_error)?;
+    let points = plan.sizes.len() * config.temperatures.len();
     let progress = Progress::new(
         (points * (config.sweeps + config.warmup)) as u64,
-        "Monte Carlo sweeps",
+        &progress_label(&plan, config.temperatures.len()),
     );
     let observer = progress.observer();
     let result =
@@ -40,6 +64,23 @@ pub fn run(args: &McArgs, out: &mut Output) -> Result<(), CliError> {
         dimension: lattice.dimension(),
         result,
     })
+}
+
+/// The progress label of a run: what is simulated and the rough cost, e.g.
+/// `Monte Carlo L = 8, 16 × 3 T (est. 2 MiB, 40.0 s)`.
+fn progress_label(plan: &RunPlan, temperatures: usize) -> String {
+    let sizes: Vec<String> = plan.sizes.iter().map(usize::to_string).collect();
+    let mib = plan.bytes as f64 / (1u64 << 20) as f64;
+    let memory = if mib < 1024.0 {
+        format!("{:.0} MiB", mib.max(1.0))
+    } else {
+        format!("{:.1} GiB", mib / 1024.0)
+    };
+    format!(
+        "Monte Carlo L = {} × {temperatures} T (est. {memory}, {})",
+        sizes.join(", "),
+        seconds(std::time::Duration::from_secs_f64(plan.seconds.min(1e9))),
+    )
 }
 
 /// Monte Carlo errors are all about the request (sizes, temperatures, sweeps): exit 2.
@@ -82,6 +123,7 @@ impl Report for McReport {
         Ok(json!({
             "lattice": self.lattice, "seed": self.result.seed, "sizes": self.result.sizes,
             "points": points, "tc_estimate": tc,
+            "definitions": DEFINITIONS.iter().map(|(k, v)| ((*k).to_string(), json!(v))).collect::<serde_json::Map<_, _>>(),
         }))
     }
 
@@ -97,7 +139,9 @@ impl Report for McReport {
             "binder",
             "binder_error",
             "specific_heat",
-            "susceptibility",
+            "specific_heat_error",
+            "susceptibility_abs_m",
+            "susceptibility_abs_m_error",
             "spins_flipped",
             "seconds",
         ]);
@@ -113,7 +157,9 @@ impl Report for McReport {
                 num(p.binder),
                 num(p.binder_error),
                 num(p.specific_heat),
+                num(p.specific_heat_error),
                 num(p.susceptibility),
+                num(p.susceptibility_error),
                 p.spins_flipped.to_string(),
                 num(p.seconds),
             ]);
@@ -131,7 +177,7 @@ impl Report for McReport {
             "|m|",
             "Binder U4",
             "C",
-            "χ",
+            CHI_PRIME,
             "update",
             "s",
         ]);
@@ -143,8 +189,8 @@ impl Report for McReport {
                 pm(p.energy, p.energy_error),
                 pm(p.abs_magnetization, p.abs_magnetization_error),
                 pm(p.binder, p.binder_error),
-                fmt4(p.specific_heat),
-                fmt4(p.susceptibility),
+                pm(p.specific_heat, p.specific_heat_error),
+                pm(p.susceptibility, p.susceptibility_error),
                 p.algorithm.name().to_string(),
                 format!("{:.2}", p.seconds),
             ]);
@@ -159,7 +205,12 @@ impl Report for McReport {
         }));
         let mut notes = vec![
             format!("per-site values on L×…×L tori; seed {} (same seed, same numbers)", self.result.seed),
-            "U4 = 1 − ⟨m⁴⟩/(3⟨m²⟩²) (Binder 1981); error bars: binning (means), jackknife (U4, C, χ)".into(),
+            "U4 = 1 − ⟨m⁴⟩/(3⟨m²⟩²) (Binder 1981); error bars: binning (means), jackknife (U4, C, χ′)".into(),
+            "C = N(⟨e²⟩ − ⟨e⟩²)/T², the same quantity as `sweep`'s C = ∂U/∂T; χ′ = N(⟨m²⟩ − ⟨|m|⟩²)/T, \
+             the finite-torus susceptibility from fluctuations of |m| (common practice in finite-size Monte Carlo), \
+             NOT `sweep`'s χ = ∂m/∂h: above Tc, where m is near-Gaussian (⟨|m|⟩² = (2/π)⟨m²⟩), \
+             χ′ ≈ (1 − 2/π) χ ≈ 0.36 χ"
+                .into(),
         ];
         if self.dimension == 1 {
             notes.push("a one-dimensional lattice has no order at T > 0: U4 curves do not cross at a finite Tc".into());

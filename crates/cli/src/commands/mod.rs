@@ -51,11 +51,7 @@ pub fn select_levels(
     for name in requested {
         let name = name.trim();
         if !known.iter().any(|k| k == name) {
-            return Err(LatticeError::UnknownLevel {
-                name: name.to_string(),
-                known: known.join(", "),
-            }
-            .into());
+            return Err(LatticeError::unknown_level(name, &known).into());
         }
         if !chosen.iter().any(|c| c == name) {
             chosen.push(name.to_string());

@@ -1,5 +1,5 @@
 //! `rungs sweep LATTICE --levels a,b --temps T0:T1:dT [--field h | --fields ...]
-//! [--plot FILE.svg]`: equilibrium thermodynamics per site along a temperature path,
+//! [--plot FILE.svg|png [--panels ...]]`: equilibrium thermodynamics per site along a temperature path,
 //! one row per (level, temperature, field).
 //!
 //! Each level is swept by the engine (`rungs_solve::sweep_level`: fields outermost, the
@@ -11,9 +11,9 @@
 //! is left out with a note saying where, never printed as NaN or inf; the path goes on.
 //! A level too large for the engine stops the command with exit status 1.
 //!
-//! With `--plot FILE.svg` the sweep is also drawn ([`crate::plot::sweep`]), with each
-//! level's Tc marked when the sweep includes h = 0 and the exact curves of a closed form
-//! recognised from the lattice's bonds.
+//! With `--plot FILE.svg` (or `.png`) the sweep is also drawn ([`crate::plot::sweep`]),
+//! with each level's Tc marked when the sweep includes h = 0 and the exact curves of a
+//! closed form recognised from the lattice's bonds.
 
 use rayon::prelude::*;
 use rungs_lattice::{Lattice, LatticeError, Level};
@@ -72,9 +72,11 @@ pub fn run(args: &SweepArgs, out: &mut Output) -> Result<(), CliError> {
         .map(|name| sweep_one(&lattice, name, temps, &fields, supercell, &progress))
         .collect::<Result<Vec<_>, _>>()?;
     progress.finish();
-    let report = SweepReport::new(&lattice, fields, levels, args.plot.is_some());
-    if let Some(path) = &args.plot {
-        crate::plot::sweep::write(path, &report.figure())?;
+    let panels = args.panels.clone().unwrap_or_default();
+    let plotted = args.plot.as_ref().map(|_| panels.0.as_slice());
+    let report = SweepReport::new(&lattice, fields, levels, plotted);
+    if let (Some(path), Some(panels)) = (&args.plot, plotted) {
+        crate::plot::file::write(path, &report.figure(panels))?;
     }
     out.emit(&report)
 }
@@ -159,6 +161,8 @@ pub fn sweep_one(
     supercell: Option<[usize; 3]>,
     progress: &Progress,
 ) -> Result<LevelSweep, CliError> {
+    let line = progress.line(&format!("level `{name}`"));
+    line.stage("building clusters");
     let level = match Level::build(lattice, name) {
         Ok(level) => level,
         Err(e @ LatticeError::ClusterTooLarge { .. }) => {
@@ -168,6 +172,7 @@ pub fn sweep_one(
         }
         Err(e) => return Err(e.into()),
     };
+    line.stage("ordering wavevector, then the path");
     let tick = || progress.inc(1);
     let options = SweepOptions { supercell };
     let swept = sweep_level(lattice, &level, temps, fields, options, &tick)
@@ -223,6 +228,7 @@ pub fn sweep_one(
             }),
         }
     }
+    line.finish();
     Ok(LevelSweep {
         level: name.to_string(),
         max_cluster_sites: level.max_cluster_sites(),

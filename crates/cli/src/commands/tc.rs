@@ -30,7 +30,7 @@ use rungs_solve::{critical_temperature, CriticalPoint, SolveError, TcOptions};
 use crate::args::TcArgs;
 use crate::error::CliError;
 use crate::output::Output;
-use crate::progress::Progress;
+use crate::progress::{Progress, StageLine};
 
 mod report;
 pub use report::TcReport;
@@ -66,21 +66,34 @@ pub fn run(args: &TcArgs, out: &mut Output) -> Result<(), CliError> {
         &lattice,
         super::select_levels(&lattice, args.levels.as_deref())?,
     )?;
-    let progress = Progress::new(names.len() as u64, "tc");
+    let progress = Progress::levels(names.len() as u64, "tc: levels done");
+    let lines: Vec<StageLine> = names
+        .iter()
+        .map(|n| progress.line(&format!("level `{n}`")))
+        .collect();
     // Build every level, search the dense ones in parallel, then the big ones (solved on
     // point-group orbits, slow) one by one, each starting just above the lowest Tc of
     // the smaller cluster rungs (cluster Tc's of a ferromagnet fall as clusters grow).
     let prepared = names
         .par_iter()
-        .map(|name| prepare(&lattice, name))
+        .zip(&lines)
+        .map(|(name, line)| {
+            line.stage("building clusters");
+            let p = prepare(&lattice, name);
+            line.wait();
+            p
+        })
         .collect::<Result<Vec<_>, _>>()?;
     let mut rows = prepared
         .par_iter()
-        .map(|p| {
+        .zip(&lines)
+        .map(|(p, line)| {
             if p.big {
                 return None;
             }
+            line.stage("Tc search");
             let row = search(&lattice, p, None, field);
+            line.finish();
             progress.inc(1);
             Some(row)
         })
@@ -93,7 +106,9 @@ pub fn run(args: &TcArgs, out: &mut Output) -> Result<(), CliError> {
             .filter_map(LevelTc::tc)
             .reduce(f64::min)
             .map(|t| 1.01 * t);
+        lines[i].stage("Tc search on point-group orbits");
         rows[i] = Some(search(&lattice, p, start_below, field));
+        lines[i].finish();
         progress.inc(1);
     }
     let levels: Vec<LevelTc> = rows.into_iter().flatten().collect();

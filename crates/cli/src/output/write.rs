@@ -1,7 +1,7 @@
 //! Writing text out: standard output (a closed pipe, as in `rungs … | head`, is not an
 //! error), or a file written atomically — a temporary file in the same directory,
 //! flushed, then renamed over the target — so a reader never sees half a report and an
-//! interrupted run leaves the old file intact. Plots (`--plot FILE.svg`) use the same
+//! interrupted run leaves the old file intact. Figures (`--plot FILE.svg|png`) use the same
 //! helper.
 
 use std::io::{ErrorKind, Write};

@@ -1,38 +1,36 @@
-//! The ladder figure: Tc against 1/(cluster sites).
+//! The ladder figure: Tc against 1/(cluster sites), and beside it, when the
+//! coherent-anomaly extrapolation was made, the view its fit rests on.
 //!
-//! Each rung with a Tc is one filled circle labelled with its level name (the only
-//! circles in the figure, so a reader — or a test — can count the rungs). The
+//! Left panel: each rung with a Tc is one filled circle labelled with its level name (the
+//! only circles in the figure, so a reader — or a test — can count the rungs). The
 //! inverse-size extrapolation `Tc = Tc* + b/N` (Kikuchi & Brush 1967) is drawn as its
 //! line over the cluster rungs with a band of ± its Tc* uncertainty; the
 //! coherent-anomaly Tc* (Suzuki 1986) as a triangle at 1/N = 0 with its error bar; the
 //! reference as a horizontal line labelled with its source (a Monte Carlo reference with
-//! its error band). Drawn into a string with plotters' SVG backend, then written
-//! atomically like every output file.
+//! its error band). The Tc axis ends on ticks ([`nice_range`]).
+//!
+//! Right panel (coherent anomaly): ln χ̄_n against ln(Tc_n − Tc*) for the rungs of the
+//! fit (squares), with the fitted line `ln χ̄ = ln A − ψ ln(Tc_n − Tc*)`, ψ = γ − 1; each
+//! rung's horizontal bar shows how far it moves when Tc* runs over Tc* ± its error.
 
-use std::path::Path;
-
+use plotters::coord::Shift;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
-use crate::commands::ladder::{Ladder, ReferenceKind};
-use crate::error::CliError;
-use crate::output::write::write_atomic;
+use super::file::Figure;
+use super::style::{linear_range, nice_range};
+use crate::commands::ladder::{Extrapolated, Ladder, ReferenceKind};
 
-/// Figure size in pixels.
-const SIZE: (u32, u32) = (960, 640);
+/// Height of the figure and width of each panel, in pixels.
+const HEIGHT: u32 = 640;
+const MAIN_WIDTH: u32 = 900;
+const CAM_WIDTH: u32 = 560;
 const RUNG: RGBColor = RGBColor(31, 90, 180);
 const LINE: RGBColor = RGBColor(200, 80, 20);
 const CAM: RGBColor = RGBColor(20, 140, 60);
 const REFERENCE: RGBColor = RGBColor(60, 60, 60);
-
-/// Draw `ladder` and write it to `path` atomically.
-pub fn write(path: &Path, ladder: &Ladder) -> Result<(), CliError> {
-    let svg = render(ladder).map_err(|e| CliError::Write {
-        path: path.to_path_buf(),
-        source: std::io::Error::other(format!("drawing the figure failed: {e}")),
-    })?;
-    write_atomic(path, svg.as_bytes())
-}
+/// The 1/N axis.
+const X_RANGE: (f64, f64) = (-0.05, 1.08);
 
 /// The short form of a source for a label: up to the first " — " or ";".
 fn short_source(source: &str) -> &str {
@@ -44,8 +42,17 @@ fn short_source(source: &str) -> &str {
     source[..end].trim()
 }
 
-/// The y range that shows every rung, extrapolation and the reference, padded.
-fn y_range(ladder: &Ladder) -> (f64, f64) {
+/// The coherent-anomaly extrapolation, if it was made.
+fn coherent_anomaly(ladder: &Ladder) -> Option<&Extrapolated> {
+    ladder
+        .extrapolations
+        .iter()
+        .find(|e| e.method == "coherent-anomaly" && e.gamma.is_some())
+}
+
+/// The Tc axis: every rung, extrapolation (with its error) and the reference, padded a
+/// little, then widened to end on ticks; with the number of ticks.
+fn y_range(ladder: &Ladder) -> (f64, f64, usize) {
     let mut ys: Vec<f64> = ladder.rungs.iter().filter_map(|r| r.tc).collect();
     for e in &ladder.extrapolations {
         ys.extend([e.tc - e.tc_error, e.tc + e.tc_error]);
@@ -54,104 +61,140 @@ fn y_range(ladder: &Ladder) -> (f64, f64) {
         let e = r.tc_error.unwrap_or(0.0);
         ys.extend([r.tc - e, r.tc + e]);
     }
-    let lo = ys
-        .iter()
-        .copied()
-        .filter(|y| y.is_finite())
-        .fold(f64::INFINITY, f64::min);
-    let hi = ys
-        .iter()
-        .copied()
-        .filter(|y| y.is_finite())
-        .fold(f64::NEG_INFINITY, f64::max);
-    if !(lo.is_finite() && hi.is_finite()) {
-        return (0.0, 1.0);
-    }
-    let pad = ((hi - lo) * 0.08).max(0.02 * hi.abs()).max(1e-3);
-    (lo - pad, hi + 1.5 * pad)
+    let (lo, hi) = linear_range(ys, false);
+    // Room above the top rung for its label.
+    let hi = hi + 0.04 * (hi - lo);
+    nice_range(lo, hi, 6)
 }
 
-/// The SVG text of the figure.
-pub fn render(ladder: &Ladder) -> Result<String, Box<dyn std::error::Error>> {
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
+impl Figure for Ladder {
+    fn size(&self) -> (u32, u32) {
+        let cam = coherent_anomaly(self).map_or(0, |_| CAM_WIDTH);
+        (MAIN_WIDTH + cam, HEIGHT)
+    }
+
+    fn draw<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, Shift>,
+    ) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
         root.fill(&WHITE)?;
-        let (y0, y1) = y_range(ladder);
-        let mut chart = ChartBuilder::on(&root)
-            .caption(
-                format!("Tc across the rungs of the ladder: {}", ladder.lattice),
-                ("sans-serif", 24),
-            )
-            .margin(20)
-            .x_label_area_size(60)
-            .y_label_area_size(80)
-            .build_cartesian_2d(-0.05f64..1.08f64, y0..y1)?;
-        chart
-            .configure_mesh()
-            .x_desc("1 / N   (N = sites of the level's largest cluster)")
-            .y_desc("Tc   (units of J / k_B)")
-            .axis_desc_style(("sans-serif", 18))
-            .label_style(("sans-serif", 15))
-            .light_line_style(WHITE)
-            .bold_line_style(RGBColor(225, 225, 225))
-            .draw()?;
-        draw_reference(&mut chart, ladder)?;
-        draw_extrapolations(&mut chart, ladder)?;
-        // The rungs last, on top: one circle and one label each. Labels go above-right of
-        // their point, or below-right when the next rung to the right is close (so that
-        // neighbouring labels do not overlap).
-        let label = ("sans-serif", 16).into_font().color(&RUNG);
-        let mut points: Vec<(f64, f64, String)> = ladder
-            .rungs
-            .iter()
-            .filter_map(|r| {
-                let tc = r.tc?;
-                Some((
-                    1.0 / r.max_cluster_sites as f64,
-                    tc,
-                    format!("{} ({})", r.level, r.max_cluster_sites),
-                ))
-            })
-            .collect();
-        points.sort_by(|a, b| b.0.total_cmp(&a.0));
-        let mut last: Option<(f64, bool)> = None;
-        let mut placed = Vec::with_capacity(points.len());
-        for (x, y, text) in points {
-            let below = matches!(last, Some((lx, lb)) if lx - x < 0.1 && !lb);
-            last = Some((x, below));
-            let offset = if below { (9, 6) } else { (9, -20) };
-            placed.push(
-                EmptyElement::at((x, y))
-                    + Circle::new((0, 0), 6, RUNG.filled())
-                    + Text::new(text, offset, label.clone()),
-            );
+        match coherent_anomaly(self) {
+            Some(cam) => {
+                let (main, side) = root.split_horizontally(MAIN_WIDTH);
+                draw_main(&main, self)?;
+                draw_coherent_anomaly(&side, self, cam)
+            }
+            None => draw_main(root, self),
         }
-        chart.draw_series(placed)?;
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::UpperLeft)
-            .label_font(("sans-serif", 15))
-            .background_style(WHITE.mix(0.9))
-            .border_style(RGBColor(180, 180, 180))
-            .draw()?;
-        root.present()?;
     }
-    Ok(svg)
 }
 
-type Chart<'a, 'b> = ChartContext<
+/// The Tc-against-1/N panel.
+fn draw_main<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    ladder: &Ladder,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    let (y0, y1, ticks) = y_range(ladder);
+    let mut chart = ChartBuilder::on(area)
+        .caption(
+            format!("Tc across the rungs of the ladder: {}", ladder.lattice),
+            ("sans-serif", 22),
+        )
+        .margin(20)
+        .x_label_area_size(60)
+        .y_label_area_size(80)
+        .build_cartesian_2d(X_RANGE.0..X_RANGE.1, y0..y1)?;
+    draw_mesh(
+        &mut chart,
+        "1 / N   (N = sites of the level's largest cluster)",
+        "Tc   (units of J / k_B)",
+        ticks,
+    )?;
+    draw_reference(&mut chart, ladder)?;
+    draw_extrapolations(&mut chart, ladder)?;
+    // The rungs last, on top: one circle and one label each. Labels go above-right of
+    // their point, or below-right when the next rung to the right is close (so that
+    // neighbouring labels do not overlap).
+    let label = ("sans-serif", 15).into_font().color(&RUNG);
+    let mut points: Vec<(f64, f64, String)> = ladder
+        .rungs
+        .iter()
+        .filter_map(|r| {
+            let tc = r.tc?;
+            Some((
+                1.0 / r.max_cluster_sites as f64,
+                tc,
+                format!("{} ({})", r.level, r.max_cluster_sites),
+            ))
+        })
+        .collect();
+    points.sort_by(|a, b| b.0.total_cmp(&a.0));
+    let mut last: Option<(f64, bool)> = None;
+    let mut placed = Vec::with_capacity(points.len());
+    for (x, y, text) in points {
+        let below = matches!(last, Some((lx, lb)) if lx - x < 0.1 && !lb);
+        last = Some((x, below));
+        let offset = if below { (9, 6) } else { (9, -20) };
+        placed.push(
+            EmptyElement::at((x, y))
+                + Circle::new((0, 0), 6, RUNG.filled())
+                + Text::new(text, offset, label.clone()),
+        );
+    }
+    chart.draw_series(placed)?;
+    draw_legend(&mut chart, SeriesLabelPosition::UpperLeft)
+}
+
+/// A panel's legend box at `position`, sized to its entries.
+fn draw_legend<'a, DB: DrawingBackend + 'a>(
+    chart: &mut Chart<'a, DB>,
+    position: SeriesLabelPosition,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    chart
+        .configure_series_labels()
+        .position(position)
+        .margin(12)
+        .legend_area_size(30)
+        .label_font(("sans-serif", 14))
+        .background_style(WHITE.mix(0.9))
+        .border_style(RGBColor(180, 180, 180))
+        .draw()
+}
+
+/// Axes with descriptions, `y_ticks` ticks on y, light grid.
+fn draw_mesh<'a, DB: DrawingBackend + 'a>(
+    chart: &mut Chart<'a, DB>,
+    x_desc: &str,
+    y_desc: &str,
+    y_ticks: usize,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    chart
+        .configure_mesh()
+        .x_desc(x_desc)
+        .y_desc(y_desc)
+        .y_labels(y_ticks)
+        .axis_desc_style(("sans-serif", 17))
+        .label_style(("sans-serif", 15))
+        .light_line_style(WHITE)
+        .bold_line_style(RGBColor(225, 225, 225))
+        .draw()
+}
+
+type Chart<'a, DB> = ChartContext<
     'a,
-    SVGBackend<'b>,
+    DB,
     Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
 >;
 
 /// The reference as a horizontal line (with its error band for Monte Carlo), labelled.
-fn draw_reference(chart: &mut Chart, ladder: &Ladder) -> Result<(), Box<dyn std::error::Error>> {
+fn draw_reference<DB: DrawingBackend>(
+    chart: &mut Chart<DB>,
+    ladder: &Ladder,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
     let Some(r) = &ladder.reference else {
         return Ok(());
     };
-    let (x0, x1) = (-0.05, 1.08);
+    let (x0, x1) = X_RANGE;
     if let Some(e) = r.tc_error.filter(|e| *e > 0.0) {
         chart.draw_series(std::iter::once(Rectangle::new(
             [(x0, r.tc - e), (x1, r.tc + e)],
@@ -164,19 +207,14 @@ fn draw_reference(chart: &mut Chart, ladder: &Ladder) -> Result<(), Box<dyn std:
             r.tc,
             r.tc_error.unwrap_or(0.0)
         ),
-        kind => format!(
-            "reference ({}): Tc = {:.6}, {}",
-            kind.as_str(),
-            r.tc,
-            short_source(&r.source)
-        ),
+        kind => format!("reference ({}): Tc = {:.6}", kind.as_str(), r.tc),
     };
     // The line's own label, at the right end, just above it.
     let tag = match r.kind {
         ReferenceKind::MonteCarlo => "Monte Carlo (this run)".to_string(),
         kind => format!("{}: {}", kind.as_str(), short_source(&r.source)),
     };
-    let style = ("sans-serif", 15)
+    let style = ("sans-serif", 14)
         .into_font()
         .color(&REFERENCE)
         .pos(Pos::new(HPos::Right, VPos::Bottom));
@@ -199,10 +237,10 @@ fn draw_reference(chart: &mut Chart, ladder: &Ladder) -> Result<(), Box<dyn std:
 }
 
 /// The inverse-size line with its band and the coherent-anomaly Tc* with its error bar.
-fn draw_extrapolations(
-    chart: &mut Chart,
+fn draw_extrapolations<DB: DrawingBackend>(
+    chart: &mut Chart<DB>,
     ladder: &Ladder,
-) -> Result<(), Box<dyn std::error::Error>> {
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
     let x_end = ladder
         .rungs
         .iter()
@@ -223,7 +261,7 @@ fn draw_extrapolations(
                         ShapeStyle::from(&LINE).stroke_width(2),
                     ))?
                     .label(format!(
-                        "inverse-size fit: Tc* = {:.4} ± {:.4}",
+                        "inverse-size fit: Tc* = {:.4} ± {:.4} (band)",
                         e.tc, e.tc_error
                     ))
                     .legend(|(x, y)| {
@@ -234,7 +272,7 @@ fn draw_extrapolations(
                     });
             }
             ("coherent-anomaly", _) => {
-                // The error bar: a vertical stroke with caps (pixel offsets for the caps).
+                // The error bar: a vertical stroke with caps.
                 let style = ShapeStyle::from(&CAM).stroke_width(2);
                 let (lo, hi) = (e.tc - e.tc_error, e.tc + e.tc_error);
                 chart.draw_series([
@@ -264,9 +302,171 @@ fn draw_extrapolations(
     Ok(())
 }
 
+/// One rung of the coherent-anomaly fit: label, ln(Tc_n − Tc*) at Tc* and at Tc* ± its
+/// error (left, right; the left end is missing when Tc* + error reaches Tc_n), ln χ̄_n.
+struct CamPoint {
+    label: String,
+    x: f64,
+    x_left: Option<f64>,
+    x_right: f64,
+    y: f64,
+}
+
+/// The rungs of the coherent-anomaly fit as points of the ln–ln view.
+fn cam_points(ladder: &Ladder, cam: &Extrapolated) -> Vec<CamPoint> {
+    ladder
+        .rungs
+        .iter()
+        .filter(|r| cam.fitted.contains(&r.level))
+        .filter_map(|r| {
+            let (tc, a) = (r.tc?, r.amplitude?);
+            let gap = tc - cam.tc;
+            (gap > 0.0 && a > 0.0).then(|| CamPoint {
+                label: r.level.clone(),
+                x: gap.ln(),
+                x_left: Some(gap - cam.tc_error).filter(|g| *g > 0.0).map(f64::ln),
+                x_right: (gap + cam.tc_error).ln(),
+                y: a.ln(),
+            })
+        })
+        .collect()
+}
+
+/// The coherent-anomaly panel: ln χ̄_n against ln(Tc_n − Tc*) with the fitted line.
+fn draw_coherent_anomaly<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    ladder: &Ladder,
+    cam: &Extrapolated,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    let points = cam_points(ladder, cam);
+    let psi = cam.gamma.unwrap_or(1.0) - 1.0;
+    // The fitted line through the points: slope −ψ, intercept the mean of ln χ̄ + ψ x
+    // (the least-squares intercept at that slope).
+    let n = points.len().max(1) as f64;
+    let ln_a = points.iter().map(|p| p.y + psi * p.x).sum::<f64>() / n;
+    let xs = points
+        .iter()
+        .flat_map(|p| [Some(p.x), p.x_left, Some(p.x_right)])
+        .flatten();
+    let (x0, x1) = linear_range(xs, false);
+    // Room on the right for the label of the last rung.
+    let x1 = x1 + 0.1 * (x1 - x0);
+    let (y0, y1) = linear_range(
+        points
+            .iter()
+            .map(|p| p.y)
+            .chain([ln_a - psi * x0, ln_a - psi * x1]),
+        false,
+    );
+    let (y0, y1, ticks) = nice_range(y0, y1 + 0.06 * (y1 - y0), 5);
+    let mut chart = ChartBuilder::on(area)
+        .caption("coherent anomaly: the fit behind Tc*", ("sans-serif", 22))
+        .margin(20)
+        .x_label_area_size(60)
+        .y_label_area_size(70)
+        .build_cartesian_2d(x0..x1, y0..y1)?;
+    draw_mesh(
+        &mut chart,
+        "ln(Tc_n − Tc*)",
+        "ln χ̄_n   (χ ≈ χ̄_n / (T − Tc_n))",
+        ticks,
+    )?;
+    let line = ShapeStyle::from(&CAM).stroke_width(2);
+    chart
+        .draw_series(LineSeries::new(
+            [(x0, ln_a - psi * x0), (x1, ln_a - psi * x1)],
+            line,
+        ))?
+        .label(format!(
+            "fit: slope −ψ = 1 − γ, γ = {:.3} ± {:.3}",
+            cam.gamma.unwrap_or(f64::NAN),
+            cam.gamma_error.unwrap_or(f64::NAN)
+        ))
+        .legend(move |(x, y)| PathElement::new([(x, y), (x + 24, y)], line));
+    let bar = ShapeStyle::from(&RUNG).stroke_width(1);
+    for p in &points {
+        let left = p.x_left.unwrap_or(x0);
+        chart.draw_series([
+            PathElement::new([(left, p.y), (p.x_right, p.y)], bar),
+            PathElement::new(
+                [
+                    (p.x_right, p.y - 0.01 * (y1 - y0)),
+                    (p.x_right, p.y + 0.01 * (y1 - y0)),
+                ],
+                bar,
+            ),
+        ])?;
+        if let Some(l) = p.x_left {
+            let cap = 0.01 * (y1 - y0);
+            chart.draw_series(std::iter::once(PathElement::new(
+                [(l, p.y - cap), (l, p.y + cap)],
+                bar,
+            )))?;
+        }
+    }
+    let label = ("sans-serif", 15).into_font().color(&RUNG);
+    chart
+        .draw_series(points.iter().map(|p| {
+            EmptyElement::at((p.x, p.y))
+                + Rectangle::new([(-5, -5), (5, 5)], RUNG.filled())
+                + Text::new(p.label.clone(), (8, -20), label.clone())
+        }))?
+        .label(format!(
+            "rungs; bars: Tc* = {:.4} ± {:.4}",
+            cam.tc, cam.tc_error
+        ))
+        .legend(|(x, y)| Rectangle::new([(x + 7, y - 5), (x + 17, y + 5)], RUNG.filled()));
+    draw_legend(&mut chart, SeriesLabelPosition::UpperRight)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::commands::ladder::RungResult;
+
+    #[test]
+    fn the_tc_axis_ends_on_a_tick_above_the_top_rung() {
+        let rung = |level: &str, sites: usize, tc: f64| RungResult {
+            level: level.into(),
+            max_cluster_sites: sites,
+            variables: 1,
+            tc: Some(tc),
+            amplitude: None,
+            mode: None,
+            searched_down_to: None,
+            seconds: 0.0,
+            skipped: None,
+        };
+        // Figure input only (no physics checked here): the site, pair and plaquette Tc of
+        // lattices/square.yaml as `rungs ladder` prints them.
+        let ladder = Ladder {
+            lattice: "square".into(),
+            dimension: 2,
+            reference: None,
+            rungs: vec![
+                rung("site", 1, 4.0),
+                rung("pair", 2, 2.885),
+                rung("plaquette", 4, 2.4257),
+            ],
+            extrapolations: Vec::new(),
+            notes: Vec::new(),
+        };
+        let (lo, hi, ticks) = y_range(&ladder);
+        let step = (hi - lo) / (ticks - 1) as f64;
+        assert!(hi >= 4.0 && lo <= 2.4257, "{lo}..{hi}");
+        // The top of the axis is a tick: a whole number of 1-2-5 steps from the bottom,
+        // and the bottom a multiple of the step.
+        assert!(
+            (lo / step - (lo / step).round()).abs() < 1e-6,
+            "{lo} {step}"
+        );
+        let mantissa = step / 10f64.powf(step.log10().floor());
+        assert!(
+            [1.0, 2.0, 5.0].iter().any(|m| (mantissa - m).abs() < 1e-6),
+            "{step}"
+        );
+        assert!(hi - 4.0 < 2.0 * step, "no needless empty band: {hi}");
+    }
 
     #[test]
     fn short_sources() {

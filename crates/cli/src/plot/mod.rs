@@ -1,6 +1,12 @@
-//! SVG figures (plotters): thermodynamics along a sweep ([`sweep`]) and Tc across the
-//! rungs of the ladder ([`ladder`]). Written atomically like every output file.
+//! Figures (plotters): thermodynamics along a sweep ([`sweep`]) and Tc across the rungs
+//! of the ladder ([`ladder`]), in the shared look of [`style`]. Every `--plot` goes
+//! through [`file`]: the format follows the file's extension (`.svg` or `.png`, anything
+//! else refused before the computation starts), text uses the embedded font, and the
+//! figure is written atomically like every output file.
 
+pub mod file;
 pub mod ladder;
 pub mod style;
 pub mod sweep;
+
+pub use file::{parse_plot_path, Figure, ImageFormat};

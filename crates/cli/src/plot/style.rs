@@ -1,8 +1,11 @@
-//! Shared look of the SVG figures: a colour-blind-safe palette (Okabe & Ito 2008,
-//! "Color Universal Design"), marker shapes that keep curves apart in greyscale, axis
-//! ranges that stay readable near divergences, and clipping of curves to those ranges
-//! (plotters draws whatever it is given, also outside the plotting area).
+//! Shared look of the figures: a colour-blind-safe palette (Okabe & Ito 2008,
+//! "Color Universal Design"), marker shapes and line styles that keep curves apart in
+//! greyscale, axis ranges that stay readable near divergences or end on a tick, and
+//! clipping of curves to those ranges (plotters draws whatever it is given, also outside
+//! the plotting area).
 
+use plotters::coord::CoordTranslate;
+use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 
 /// Curve colours, in order of use (Okabe–Ito palette; black is kept for exact curves).
@@ -45,6 +48,73 @@ pub const MARKERS: [Marker; 6] = [
     Marker::Cross,
     Marker::Ring,
 ];
+
+/// A line style: solid or one of three dash patterns.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Dash {
+    /// Unbroken.
+    Solid,
+    /// Medium dashes.
+    Dashed,
+    /// Dots.
+    Dotted,
+    /// Long dashes.
+    LongDash,
+}
+
+/// Line styles in order of use (one per field when several fields are swept).
+pub const DASHES: [Dash; 4] = [Dash::Solid, Dash::Dashed, Dash::Dotted, Dash::LongDash];
+
+impl Dash {
+    /// Dash and gap lengths in pixels; `None` for a solid line.
+    pub fn pattern(self) -> Option<(i32, i32)> {
+        match self {
+            Dash::Solid => None,
+            Dash::Dashed => Some((9, 5)),
+            Dash::Dotted => Some((2, 4)),
+            Dash::LongDash => Some((20, 6)),
+        }
+    }
+}
+
+/// Draw the polyline `points` on `area` in `style`, solid or dashed.
+pub fn draw_line<DB: DrawingBackend, CT: CoordTranslate>(
+    area: &DrawingArea<DB, CT>,
+    points: Vec<CT::From>,
+    dash: Dash,
+    style: ShapeStyle,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>>
+where
+    CT::From: Clone,
+{
+    match dash.pattern() {
+        None => area.draw(&PathElement::new(points, style)),
+        Some((on, off)) => area.draw(&DashedPathElement::new(points, on, off, style)),
+    }
+}
+
+/// An axis range around `lo..hi` widened to whole multiples of a 1-2-5 step that gives
+/// about `target` intervals, so the first and the last tick sit on the ends of the axis
+/// and no point lies beyond the last tick; with the number of ticks.
+pub fn nice_range(lo: f64, hi: f64, target: usize) -> (f64, f64, usize) {
+    let target = target.max(1);
+    if !(lo.is_finite() && hi.is_finite() && hi > lo) {
+        return (lo, hi, target + 1);
+    }
+    let raw = (hi - lo) / target as f64;
+    let magnitude = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 5.0, 10.0]
+        .iter()
+        .map(|m| m * magnitude)
+        .find(|s| *s >= raw * (1.0 - 1e-12))
+        .unwrap_or(10.0 * magnitude);
+    // Tolerate rounding: a value a hair above a multiple of the step stays on it.
+    let a = (lo / step + 1e-9).floor() * step;
+    let b = (hi / step - 1e-9).ceil() * step;
+    let ticks = ((b - a) / step).round() as usize + 1;
+    // Plotters places ticks inside the range only: keep the last one a hair inside.
+    (a - 1e-9 * step, b + 1e-9 * step, ticks)
+}
 
 /// Colour and marker of curve `i`.
 pub fn curve_style(i: usize) -> (RGBColor, Marker) {
@@ -264,6 +334,22 @@ mod tests {
         let (lo, hi, cut) = log_range([0.01, 1.0, 1e9], 6.0);
         assert!(cut && lo < 0.01 && hi <= 1.5e4);
         assert!(!log_range([0.5, 2.0], 6.0).2);
+    }
+
+    #[test]
+    fn nice_ranges_end_on_ticks() {
+        let (lo, hi, ticks) = nice_range(2.21, 3.97, 5);
+        assert!(
+            (lo - 2.0).abs() < 1e-6 && (hi - 4.0).abs() < 1e-6,
+            "{lo} {hi}"
+        );
+        assert_eq!(ticks, 5);
+        let (lo, hi, ticks) = nice_range(0.0, 1.0, 5);
+        assert!(
+            lo.abs() < 1e-6 && (hi - 1.0).abs() < 1e-6 && ticks == 6,
+            "{lo} {hi} {ticks}"
+        );
+        assert!(nice_range(1.0, 1.0, 5).2 == 6);
     }
 
     #[test]

@@ -2,6 +2,7 @@
 //! refused with a located [`LatticeError`] naming what belongs there.
 
 use crate::error::{LatticeError, Place};
+use crate::suggest::did_you_mean;
 
 use super::yaml::{shorten, Kind, Node};
 
@@ -103,8 +104,7 @@ impl<'n> Fields<'n> {
                 return Err(LatticeError::UnknownKey {
                     at: ctx.at_node(k, path),
                     key: shorten(&key),
-                    suggestion: suggest(&key, allowed)
-                        .map_or(String::new(), |s| format!(" (did you mean `{s}`?)")),
+                    suggestion: did_you_mean(&key, allowed),
                     allowed: allowed.join(", "),
                 });
             }
@@ -154,43 +154,6 @@ impl<'n> Fields<'n> {
     pub fn path(&self, key: &str) -> String {
         key_path(&self.path, key)
     }
-}
-
-/// The closest allowed key to a misspelt one: same letters ignoring case, or at most two
-/// edits away (Levenshtein distance).
-fn suggest<'a>(key: &str, allowed: &[&'a str]) -> Option<&'a str> {
-    let lower = key.to_lowercase();
-    allowed
-        .iter()
-        .map(|a| {
-            (
-                if a.to_lowercase() == lower {
-                    0
-                } else {
-                    edit_distance(&lower, a)
-                },
-                *a,
-            )
-        })
-        .filter(|&(d, _)| d <= 2)
-        .min_by_key(|&(d, _)| d)
-        .map(|(_, a)| a)
-}
-
-/// Levenshtein distance between two strings, by characters.
-fn edit_distance(a: &str, b: &str) -> usize {
-    let b: Vec<char> = b.chars().collect();
-    let mut prev: Vec<usize> = (0..=b.len()).collect();
-    for (i, ca) in a.chars().enumerate() {
-        let mut cur = vec![i + 1; b.len() + 1];
-        for (j, &cb) in b.iter().enumerate() {
-            cur[j + 1] = (prev[j] + usize::from(ca != cb))
-                .min(prev[j + 1] + 1)
-                .min(cur[j] + 1);
-        }
-        prev = cur;
-    }
-    prev[b.len()]
 }
 
 /// The entries of a mapping with free keys (couplings, clusters), in file order.
@@ -324,25 +287,4 @@ pub(crate) fn cell(ctx: &Ctx, node: &Node, path: &str) -> Result<Item<Vec<i32>>,
         value,
         loc: loc(node, path),
     })
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn edit_distance_counts_single_edits() {
-        assert_eq!(edit_distance("coupling", "coupling"), 0);
-        assert_eq!(edit_distance("couplng", "coupling"), 1);
-        assert_eq!(edit_distance("vector", "vectors"), 1);
-        assert_eq!(edit_distance("abc", "xyz"), 3);
-    }
-
-    #[test]
-    fn suggestions_only_for_near_misses() {
-        let allowed = ["from", "to", "cell", "coupling"];
-        assert_eq!(suggest("From", &allowed), Some("from"));
-        assert_eq!(suggest("couplng", &allowed), Some("coupling"));
-        assert_eq!(suggest("colour", &allowed), None);
-    }
 }

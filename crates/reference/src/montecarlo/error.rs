@@ -37,6 +37,21 @@ pub enum McError {
         /// Largest supported count.
         max: usize,
     },
+    /// A run whose estimated peak memory exceeds the limit (see
+    /// [`super::budget::plan`]).
+    #[error(
+        "size {size}: a torus of {sites:.3e} sites needs about {gib:.1} GiB of memory, over the limit of {limit_gib:.1} GiB; choose smaller sizes"
+    )]
+    TooMuchMemory {
+        /// The linear size that breaks the limit.
+        size: usize,
+        /// Sites of that torus.
+        sites: f64,
+        /// Estimated peak memory of the run, GiB.
+        gib: f64,
+        /// The limit, GiB.
+        limit_gib: f64,
+    },
     /// A temperature that is not a positive finite number.
     #[error("temperature {0} is not a positive finite number; give temperatures > 0")]
     BadTemperature(f64),

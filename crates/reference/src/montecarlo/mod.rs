@@ -7,6 +7,8 @@
 //! * [`observables`]: per-sweep measurements, binning-analysis error bars and
 //!   jackknife estimates of the Binder cumulant, specific heat and susceptibility;
 //! * [`binder`]: the critical temperature from Binder-cumulant crossings;
+//! * [`budget`]: the arguments checked and the memory and work of a run estimated
+//!   before anything is built;
 //! * [`run`]: the driver over sizes × temperatures, parallel and reproducible.
 //!
 //! Units as in the whole crate: k_B = 1, `H = -Σ J s_i s_j - h Σ s_i`, energies and
@@ -34,6 +36,7 @@
 //! ```
 
 pub mod binder;
+pub mod budget;
 pub mod error;
 pub mod metropolis;
 pub mod neighbours;
@@ -43,6 +46,7 @@ pub mod run;
 pub mod wolff;
 
 pub use binder::{binder_crossing, Crossing, TcEstimate};
+pub use budget::{plan, RunPlan};
 pub use error::McError;
 pub use metropolis::Metropolis;
 pub use neighbours::Neighbours;

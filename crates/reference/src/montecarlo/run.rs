@@ -14,6 +14,7 @@ use rayon::prelude::*;
 use rungs_lattice::{Lattice, Torus};
 
 use super::binder::{binder_crossing, TcEstimate};
+use super::budget::{check_run, plan};
 use super::error::McError;
 use super::metropolis::Metropolis;
 use super::neighbours::Neighbours;
@@ -144,17 +145,17 @@ pub struct McResult {
 }
 
 /// Simulate `lattice` on `L × … × L` tori for every L in `sizes` (sorted, duplicates
-/// dropped) at every temperature of `config`.
+/// dropped) at every temperature of `config`. Every argument is checked, and the memory
+/// the run needs estimated, before any torus is built ([`plan`]).
 pub fn run(
     lattice: &Lattice,
     sizes: &[usize],
     config: &McConfig,
     progress: Option<Progress>,
 ) -> Result<McResult, McError> {
-    let mut sizes = sizes.to_vec();
-    sizes.sort_unstable();
-    sizes.dedup();
-    let systems = sizes
+    let plan = plan(lattice, sizes, config, rayon::current_num_threads())?;
+    let systems = plan
+        .sizes
         .iter()
         .map(|&size| {
             let torus = Torus::new(lattice, &vec![size; lattice.dimension()])
@@ -175,24 +176,9 @@ pub fn run_systems(
     config: &McConfig,
     progress: Option<Progress>,
 ) -> Result<McResult, McError> {
+    check_run(config)?;
     if systems.is_empty() {
         return Err(McError::Empty("sizes"));
-    }
-    if config.temperatures.is_empty() {
-        return Err(McError::Empty("temperatures"));
-    }
-    if let Some(&t) = config
-        .temperatures
-        .iter()
-        .find(|t| !(t.is_finite() && **t > 0.0))
-    {
-        return Err(McError::BadTemperature(t));
-    }
-    if config.sweeps < 2 * MIN_BINS {
-        return Err(McError::TooFewSweeps {
-            sweeps: config.sweeps,
-            min: 2 * MIN_BINS,
-        });
     }
     let algorithms = systems
         .iter()

@@ -54,6 +54,8 @@ pub struct Extrapolated {
     pub gamma_error: Option<f64>,
     /// Slope b of `Tc_n = Tc* + b/N_n` (inverse-size only; for the figure).
     pub slope: Option<f64>,
+    /// The levels the fit used (for the figure's coherent-anomaly view).
+    pub fitted: Vec<String>,
 }
 
 /// The levels to climb, sorted by the size of their largest cluster (file order among
@@ -95,7 +97,10 @@ pub fn climb(
 ) -> Result<Vec<RungResult>, CliError> {
     let mut rungs = Vec::with_capacity(names.len());
     for name in names {
+        let line = bar.line(&format!("level `{name}`"));
+        line.stage("building clusters");
         let level = Level::build(lattice, name)?;
+        line.stage("Tc search");
         let base = RungResult {
             level: name.clone(),
             max_cluster_sites: level.max_cluster_sites(),
@@ -145,6 +150,11 @@ pub fn climb(
                 ..base
             },
         };
+        line.finish_with(match (&rung.skipped, rung.tc) {
+            (Some(_), _) => "skipped",
+            (None, None) => "no transition",
+            (None, Some(_)) => "done",
+        });
         rungs.push(rung);
         bar.inc(1);
     }
@@ -166,7 +176,7 @@ pub fn climb(
 /// — and none that repeats the Tc of a smaller rung (e.g. a tree-like block, which is
 /// no better than the pair level): such a rung adds no information and would make the
 /// fits look more certain than they are. Each one left out is named in `notes`.
-fn cluster_rungs(rungs: &[RungResult], notes: &mut Vec<String>) -> Vec<Rung> {
+fn cluster_rungs<'r>(rungs: &'r [RungResult], notes: &mut Vec<String>) -> Vec<(&'r str, Rung)> {
     let mut named: Vec<(&str, Rung)> = rungs
         .iter()
         .filter(|r| r.max_cluster_sites >= 2)
@@ -195,7 +205,7 @@ fn cluster_rungs(rungs: &[RungResult], notes: &mut Vec<String>) -> Vec<Rung> {
             None => kept.push((name, rung)),
         }
     }
-    kept.into_iter().map(|(_, r)| r).collect()
+    kept
 }
 
 /// Slope of the least-squares line `Tc = a + b/N` through the cluster rungs.
@@ -212,7 +222,15 @@ fn inverse_size_slope(v: &[Rung]) -> Option<f64> {
 
 /// Both extrapolations over the cluster rungs; what cannot be made becomes a note.
 pub fn extrapolate(rungs: &[RungResult], notes: &mut Vec<String>) -> Vec<Extrapolated> {
-    let v = cluster_rungs(rungs, notes);
+    let named = cluster_rungs(rungs, notes);
+    let v: Vec<Rung> = named.iter().map(|(_, r)| *r).collect();
+    let names = |with_amplitude: bool| -> Vec<String> {
+        named
+            .iter()
+            .filter(|(_, r)| !with_amplitude || (r.amplitude.is_finite() && r.amplitude > 0.0))
+            .map(|(n, _)| n.to_string())
+            .collect()
+    };
     let mut out = Vec::new();
     if v.is_empty() {
         notes.push(
@@ -220,9 +238,14 @@ pub fn extrapolate(rungs: &[RungResult], notes: &mut Vec<String>) -> Vec<Extrapo
         );
         return out;
     }
-    for (method, result, slope) in [
-        ("coherent-anomaly", coherent_anomaly(&v), None),
-        ("inverse-size", inverse_size(&v), inverse_size_slope(&v)),
+    for (method, result, slope, fitted) in [
+        ("coherent-anomaly", coherent_anomaly(&v), None, names(true)),
+        (
+            "inverse-size",
+            inverse_size(&v),
+            inverse_size_slope(&v),
+            names(false),
+        ),
     ] {
         match result {
             Ok(Extrapolation {
@@ -238,6 +261,7 @@ pub fn extrapolate(rungs: &[RungResult], notes: &mut Vec<String>) -> Vec<Extrapo
                     gamma: gamma.filter(|g| g.is_finite()),
                     gamma_error: gamma_error.filter(|g| g.is_finite()),
                     slope,
+                    fitted,
                 });
             }
             Ok(_) => notes.push(format!(

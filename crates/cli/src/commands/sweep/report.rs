@@ -11,7 +11,19 @@ use serde_json::{json, Map, Value};
 use super::{LevelSweep, PointInfo, COLUMNS};
 use crate::commands::tc::{order_note, NOT_BOUNDS_NOTE, ONE_D_NOTE};
 use crate::output::{fixed, num, Block, Grid, Report, TextDoc};
-use crate::plot::sweep::{LevelCurves, SweepFigure};
+use crate::plot::sweep::{LevelCurves, Quantity, SweepFigure};
+
+/// Table header of the susceptibility: the response to the field, not `mc`'s χ′.
+pub const CHI: &str = "χ = ∂m/∂h";
+
+/// What the specific heat and the susceptibility of `sweep` are (JSON `definitions`).
+pub const DEFINITIONS: [(&str, &str); 2] = [
+    ("specific_heat", "dU/dT at fixed h, per site"),
+    (
+        "susceptibility",
+        "dm/dh at fixed T, per site (the response to the field); not mc's N(<m^2> - <|m|>^2)/T",
+    ),
+];
 
 /// The full `sweep` result.
 #[derive(Debug, Clone)]
@@ -31,7 +43,7 @@ impl SweepReport {
         lattice: &Lattice,
         fields: Vec<f64>,
         levels: Vec<LevelSweep>,
-        plotted: bool,
+        plotted: Option<&[Quantity]>,
     ) -> SweepReport {
         let exact = ClosedForm::recognise(lattice);
         let mut report = SweepReport {
@@ -46,13 +58,13 @@ impl SweepReport {
         report
     }
 
-    fn make_notes(&self, lattice: &Lattice, plotted: bool) -> Vec<String> {
+    fn make_notes(&self, lattice: &Lattice, plotted: Option<&[Quantity]>) -> Vec<String> {
         let mut notes = vec![
             "per site, k_B = 1: T in units of J/k_B; m magnetisation, U energy, F free energy (J), \
-             S entropy (k_B), C specific heat (k_B), χ = ∂m/∂h (the uniform susceptibility), \
-             order parameter = amplitude of the level's ordering pattern in the sublattice \
-             magnetisations (|m| for uniform order, the staggered magnetisation for Néel order, \
-             0 in the disordered phase)."
+             S entropy (k_B), C specific heat (k_B), χ = ∂m/∂h (the response to the field; not `mc`'s \
+             χ′ = N(⟨m²⟩ − ⟨|m|⟩²)/T, which is about 0.36 χ above Tc), order parameter = amplitude \
+             of the level's ordering pattern in the sublattice magnetisations (|m| for uniform order, \
+             the staggered magnetisation for Néel order, 0 in the disordered phase)."
                 .to_string(),
             "each point continues the branch of the point before it (warm start), in the order the \
              temperatures are given: a path that cools through a first-order transition stays in the \
@@ -132,20 +144,41 @@ impl SweepReport {
                 ));
             }
         }
-        if plotted {
-            if let Some(form) = &self.exact {
-                notes.push(format!(
-                    "plot: exact curves of the {} lattice from {}.",
-                    form.name(),
-                    form.source()
-                ));
-            }
+        if let (Some(panels), Some(form)) = (plotted, &self.exact) {
+            notes.extend(self.exact_note(form, panels));
         }
         notes
     }
 
-    /// What the plot draws.
-    pub fn figure(&self) -> SweepFigure<'_> {
+    /// The note citing the exact curves the figure draws, naming the fields where the
+    /// closed form gives none; no note when it draws none.
+    fn exact_note(&self, form: &ClosedForm, panels: &[Quantity]) -> Option<String> {
+        let drawn = self.figure(panels).exact_fields();
+        if drawn.is_empty() {
+            return None;
+        }
+        let list = |hs: &[f64]| hs.iter().map(|h| num(*h)).collect::<Vec<_>>().join(", ");
+        let missing: Vec<f64> = self
+            .fields
+            .iter()
+            .copied()
+            .filter(|h| !drawn.contains(h))
+            .collect();
+        let none = if missing.is_empty() {
+            String::new()
+        } else {
+            format!("; none at h = {} (no closed form there)", list(&missing))
+        };
+        Some(format!(
+            "plot: exact curves of the {} lattice at h = {} from {}{none}.",
+            form.name(),
+            list(&drawn),
+            form.source()
+        ))
+    }
+
+    /// What the plot draws, in `panels`.
+    pub fn figure<'a>(&'a self, panels: &'a [Quantity]) -> SweepFigure<'a> {
         SweepFigure {
             lattice: &self.lattice,
             levels: self
@@ -159,6 +192,7 @@ impl SweepReport {
                 .collect(),
             fields: &self.fields,
             exact: self.exact,
+            panels,
         }
     }
 
@@ -243,6 +277,7 @@ impl Report for SweepReport {
             "points": points,
             "omitted": omitted,
             "notes": self.notes,
+            "definitions": DEFINITIONS.iter().map(|(k, v)| ((*k).to_string(), json!(v))).collect::<Map<_, _>>(),
         }))
     }
 
@@ -280,7 +315,7 @@ impl Report for SweepReport {
                 l.max_cluster_sites,
                 if l.max_cluster_sites == 1 { "" } else { "s" }
             )));
-            let mut grid = Grid::new(["T", "h", "m", "order", "U", "F", "S", "C", "χ", "note"]);
+            let mut grid = Grid::new(["T", "h", "m", "order", "U", "F", "S", "C", CHI, "note"]);
             for (p, i) in l.points.iter().zip(&l.info) {
                 grid.push([
                     num(p.temperature),
