@@ -136,9 +136,9 @@ fn bad_temperature_lists() {
             "--levels",
             "pair",
             "--temps",
-            "3:1:0.1",
+            "1:3:-0.1",
         ],
-        &["greater than stop"],
+        &["points away from stop"],
     );
     fails_with_2(
         &[
@@ -149,7 +149,7 @@ fn bad_temperature_lists() {
             "--temps",
             "1:2:0",
         ],
-        &["step must be positive"],
+        &["must not be zero"],
     );
     fails_with_2(
         &[

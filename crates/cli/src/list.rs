@@ -1,7 +1,8 @@
 //! Value lists for `--temps`, `--fields` and `--sizes`.
 //!
 //! One grammar for all three (CLI.md): one value `2.5`, a comma list `2.0,2.5,3.0`, or an
-//! inclusive range `start:stop:step` such as `1.5:3.5:0.01`. A range holds
+//! inclusive range `start:stop:step` such as `1.5:3.5:0.01`; with start > stop the range
+//! runs downward (`3.5:1.5:0.01`, a cooling path; the step may be written negative). A range holds
 //! `start + k·step` for `k = 0, 1, …, n` with `n = round((stop − start)/step)` when that
 //! lands on `stop` within rounding (relative 1e-9 of a step), else `floor(…)`; the last
 //! point is then snapped to `stop` exactly, so `0.1:0.3:0.1` ends at `0.3`, not at
@@ -106,16 +107,18 @@ fn parse_range(text: &str) -> Result<Vec<f64>, String> {
         parse_number(stop)?,
         parse_number(step)?,
     );
-    if step <= 0.0 {
+    if step == 0.0 {
+        return Err(format!("range `{text}`: the step must not be zero"));
+    }
+    // A range runs from start toward stop: descending when stop < start (a cooling
+    // path), with the step's magnitude; a negative step must point that way too.
+    let direction = if stop < start { -1.0 } else { 1.0 };
+    if step < 0.0 && direction > 0.0 {
         return Err(format!(
-            "range `{text}`: the step must be positive, got {step}"
+            "range `{text}`: the step {step} points away from stop {stop}; give a positive step, or write the larger value first for a descending path"
         ));
     }
-    if start > stop {
-        return Err(format!(
-            "range `{text}`: start {start} is greater than stop {stop}; write the smaller value first"
-        ));
-    }
+    let step = direction * step.abs();
     let too_many =
         || format!("range `{text}` has more than {MAX_POINTS} points: use a larger step");
     let ratio = (stop - start) / step;
@@ -192,6 +195,11 @@ mod tests {
         assert_eq!(parse_reals("1:100000:1").unwrap().0.len(), MAX_POINTS);
         // A one-point range.
         assert_eq!(parse_reals("2:2:0.1").unwrap().0, vec![2.0]);
+        // Descending (cooling) paths, with the step written either way.
+        assert_eq!(parse_reals("3:2:0.5").unwrap().0, vec![3.0, 2.5, 2.0]);
+        assert_eq!(parse_reals("3:2:-0.5").unwrap().0, vec![3.0, 2.5, 2.0]);
+        assert!(parse_reals("2:3:-0.5").is_err());
+        assert!(parse_reals("2:3:0").is_err());
     }
 
     #[test]
@@ -220,9 +228,8 @@ mod tests {
             ("inf", "not a finite number"),
             ("1:2", "not a range"),
             ("1:2:3:4", "not a range"),
-            ("1:2:0", "step must be positive"),
-            ("1:2:-0.1", "step must be positive"),
-            ("3:1:0.1", "greater than stop"),
+            ("1:2:0", "must not be zero"),
+            ("1:2:-0.1", "points away from stop"),
             ("0:1:1e-6", "more than 100000 points"),
             ("0:100000:1", "more than 100000 points"),
             ("1:2:0.5,3", "mixes a range"),

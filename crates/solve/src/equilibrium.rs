@@ -52,6 +52,9 @@ const ROUNDING_FLOOR: f64 = 1e-7;
 /// shrink it (the rounding floor of big clusters).
 const STAGNATION_FLOOR: f64 = 1e-5;
 
+/// A gradient beyond this is never taken as converged, whatever the step.
+const DECREMENT_GRADIENT_LIMIT: f64 = 1e3;
+
 fn block_norm(g: &[f64], block: &Block) -> f64 {
     block.vars.iter().map(|&v| g[v].abs()).fold(0.0, f64::max)
 }
@@ -80,18 +83,28 @@ pub struct DenseSolver {
 
 impl HessianSolver for DenseSolver {
     fn assemble(&mut self, f: &Functional, x: &[f64], block: &Block) -> bool {
-        self.h = f.hessian_block(x, &block.vars, &block.pos);
+        self.h = if f.is_precise() {
+            f.hessian_block_precise(x, &block.vars, &block.pos)
+        } else {
+            f.hessian_block(x, &block.vars, &block.pos)
+        };
         self.h.is_some()
     }
+    /// Shifts are relative to the diagonal (see [`HessianSolver::solve_shifted`] here).
     fn scale(&self) -> f64 {
-        self.h
-            .as_ref()
-            .map_or(1.0, |h| h.diagonal().amax().max(1e-300))
+        1.0
     }
+    /// `(H + μ D) d = rhs` with D the diagonal of H (|·|, floored): a scale-invariant
+    /// Levenberg shift. At low temperature H's diagonal spans 1/p over tens of decades,
+    /// and a shift proportional to the largest entry would swamp every soft direction.
     fn solve_shifted(&mut self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>> {
         let mut m = self.h.clone()?;
-        for i in 0..m.nrows() {
-            m[(i, i)] += mu;
+        if mu != 0.0 {
+            let floor = 1e-300;
+            for i in 0..m.nrows() {
+                let d = m[(i, i)].abs().max(floor);
+                m[(i, i)] += mu * d;
+            }
         }
         let chol = m.cholesky()?;
         Some(
@@ -123,6 +136,7 @@ pub fn minimise_with(
 ) -> Result<Solution, SolveError> {
     let level = f.level().name.clone();
     let (t, h) = (f.temperature(), f.field());
+    let flip = matches!(f.basis(), crate::functional::Basis::Flip { .. });
     let mut x = x0;
     let Some(mut ev) = f.evaluate(&x) else {
         return Err(SolveError::InfeasibleStart { level, t, h });
@@ -186,6 +200,31 @@ pub fn minimise_with(
                 });
             }
             let slope: f64 = g.iter().zip(&d).map(|(a, b)| a * b).sum();
+            // In the flip basis the variables are probabilities spanning many decades:
+            // converged when Newton's step changes none of them by more than 10⁻¹⁰ of
+            // itself (the gradient of a tiny probability can stay large at the rounding
+            // of the state, and F cannot see its errors).
+            if flip && mu <= 1e-6 * scale && gn < DECREMENT_GRADIENT_LIMIT {
+                // A rare state's probability is only as precise as 10⁻¹⁶ times the
+                // cancellation in it: the tolerance follows.
+                let rel = if stalled >= 2 {
+                    (1e-14 * f.cancellation(&x)).clamp(1e-10, 1e-2)
+                } else {
+                    1e-10
+                };
+                let relative = block
+                    .vars
+                    .iter()
+                    .zip(&d)
+                    .all(|(&v, dv)| dv.abs() <= rel * x[v].abs());
+                if relative {
+                    return Ok(Solution {
+                        x,
+                        evaluation: ev,
+                        iterations: it,
+                    });
+                }
+            }
             let mut alpha = 1.0;
             let mut xn = x.clone();
             for _ in 0..50 {

@@ -62,6 +62,18 @@ pub enum SolveError {
         /// The limit.
         limit: usize,
     },
+    /// The state cannot be represented precisely in double precision any more.
+    #[error("level `{level}` at T = {t}, h = {h}: not computed: {detail}")]
+    PrecisionLimit {
+        /// Level name.
+        level: String,
+        /// Temperature.
+        t: f64,
+        /// Field.
+        h: f64,
+        /// Why, and where the limit lies.
+        detail: String,
+    },
     /// The Tc search failed.
     #[error("level `{level}`: Tc search failed: {detail}")]
     TcSearch {

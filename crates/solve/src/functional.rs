@@ -125,6 +125,10 @@ struct Setup {
     energy: EnergyForm,
     /// Per basis site: (variable, ∂m_a/∂x).
     sites: Vec<(usize, f64)>,
+    /// Transforms of ln p and Hessians in double-double (flip basis, or a reference):
+    /// low-temperature states, whose Hessian entries span 1/p over many decades and
+    /// cancel between a region and its overlaps.
+    precise: bool,
 }
 
 /// The free-energy functional of one level at temperature `t` and field `h`.
@@ -255,6 +259,7 @@ impl<'a> Functional<'a> {
                 (v, pattern.map_or(1.0, |eps| -2.0 * eps[a]))
             })
             .collect();
+        let precise = reference.is_some() || basis != Basis::Walsh;
         Functional {
             level,
             t,
@@ -265,6 +270,7 @@ impl<'a> Functional<'a> {
                 reference,
                 energy,
                 sites,
+                precise,
             }),
         }
     }
@@ -285,6 +291,12 @@ impl<'a> Functional<'a> {
     pub fn basis(&self) -> &Basis {
         &self.setup.basis
     }
+    /// Whether gradients' transforms and Hessians are computed in double-double (the
+    /// flip basis, or a reference): see [`Functional::hessian_block_precise`].
+    pub fn is_precise(&self) -> bool {
+        self.setup.precise
+    }
+
     /// The reference values the variables are offsets from, if any.
     pub fn reference(&self) -> Option<&[f64]> {
         self.setup.reference.as_ref().map(|(r, _)| r.as_slice())
@@ -364,6 +376,17 @@ impl<'a> Functional<'a> {
     /// most probable state, when above 1/2, is recomputed as one minus the others, so
     /// that its logarithm ([`ln_largest`]) is precise.
     fn probabilities(&self, r: &RegionTerm, ri: usize, x: &[f64], p: &mut [f64]) -> bool {
+        if self.setup.precise {
+            // Inclusion–exclusion over supersets (flip basis) or a transform of offsets
+            // (reference) can cancel: summed in double-double.
+            return match self.probabilities_dd(r, ri, x) {
+                Some(q) => {
+                    p.iter_mut().zip(&q).for_each(|(a, b)| *a = b.to_f64());
+                    true
+                }
+                None => false,
+            };
+        }
         p[0] = 0.0;
         for (slot, &v) in p.iter_mut().zip(&r.vars).skip(1) {
             *slot = x[v as usize];
@@ -521,6 +544,24 @@ impl<'a> Functional<'a> {
             s_total += r.coefficient * s;
             // p now holds ln p; ∂S/∂x_c = −(Tᵀ ln p)[c].
             let f = scale * r.coefficient;
+            if self.setup.precise {
+                // Alternating sums of logarithms of size β ΔE: summed in double-double.
+                let mut l: Vec<Dd> = p.iter().map(|&v| Dd::from_f64(v)).collect();
+                let norm = match self.setup.basis {
+                    Basis::Walsh => {
+                        walsh(&mut l);
+                        1.0 / (1usize << r.n) as f64
+                    }
+                    Basis::Flip { .. } => {
+                        mobius_subset(&mut l);
+                        1.0
+                    }
+                };
+                for (mask, &v) in r.vars.iter().enumerate().skip(1) {
+                    g[v as usize] -= f * norm * l[mask].to_f64();
+                }
+                continue;
+            }
             match self.setup.basis {
                 Basis::Walsh => {
                     walsh(&mut p);
@@ -747,6 +788,43 @@ impl<'a> Functional<'a> {
             out[b] += c * v[a];
         }
         Some(())
+    }
+
+    /// The worst cancellation in the cluster probabilities at x: the largest ratio of
+    /// the sum of the magnitudes of the terms that make up a probability to the
+    /// probability itself (flip basis: `Σ_{B ⊇ A} ζ_B / p(A)`; Walsh:
+    /// `2^-n Σ_c |ξ_c| / p`). A probability's relative precision is about 10⁻¹⁶ times
+    /// this; beyond ~10¹² the state is at the edge of what doubles can hold.
+    pub fn cancellation(&self, x: &[f64]) -> f64 {
+        let v = self.values(x);
+        let mut worst: f64 = 1.0;
+        for (ri, r) in self.setup.regions.iter().enumerate() {
+            let Some(p) = self.region_probabilities(ri, x) else {
+                return f64::INFINITY;
+            };
+            let size = 1usize << r.n;
+            let mut mags = vec![0.0; size];
+            mags[0] = 1.0;
+            for (slot, &var) in mags.iter_mut().zip(&r.vars).skip(1) {
+                *slot = v[var as usize].abs();
+            }
+            match self.setup.basis {
+                Basis::Walsh => {
+                    let total: f64 = mags.iter().sum::<f64>() / size as f64;
+                    for q in &p {
+                        worst = worst.max(total / q);
+                    }
+                }
+                Basis::Flip { .. } => {
+                    zeta_superset(&mut mags);
+                    // p is in spin labels; back to flip labels.
+                    for (a, m) in mags.iter().enumerate() {
+                        worst = worst.max(m / p[a ^ r.negative]);
+                    }
+                }
+            }
+        }
+        worst
     }
 
     /// The probabilities of region orbit `ri` (index among the active regions) at x, in

@@ -70,6 +70,11 @@ pub struct PhaseCell {
     pub wavevectors: Vec<Wavevector>,
     /// Cautions that hold for the whole path.
     pub notes: Vec<String>,
+    /// Whether some maximal cluster holds a site together with all its neighbours (the
+    /// centre of a 3×3 block): at low temperature that site's flip is nearly forced
+    /// when its neighbours are flipped, and the cluster probabilities span more
+    /// decades than doubles resolve.
+    pub interior_sites: bool,
 }
 
 impl PhaseCell {
@@ -126,6 +131,7 @@ impl PhaseCell {
                 }
             }
         }
+        let interior_sites = has_interior_site(lattice, primitive);
         Ok(PhaseCell {
             n,
             lattice: cell_lattice,
@@ -135,6 +141,7 @@ impl PhaseCell {
             ordering: ordering.cloned(),
             wavevectors,
             notes,
+            interior_sites,
         })
     }
 
@@ -142,6 +149,17 @@ impl PhaseCell {
     pub fn sites(&self) -> usize {
         self.level.sites_per_cell
     }
+}
+
+/// Whether a maximal cluster of `level` contains some site with all its neighbours.
+fn has_interior_site(lattice: &Lattice, level: &Level) -> bool {
+    level.maximal.iter().any(|c| {
+        c.sites().any(|(a, cell)| {
+            lattice.neighbours(a).iter().all(|&(b, off, _)| {
+                c.contains(b, [cell[0] + off[0], cell[1] + off[1], cell[2] + off[2]])
+            })
+        })
+    })
 }
 
 /// Whether the ordering's wavevector is commensurate with a cell of n cells.
@@ -221,6 +239,9 @@ pub struct PhaseFollower<'c> {
     last: Option<Last>,
     /// The level's Tc at this field, where known: where a cold ordered start begins.
     tc_hint: Option<f64>,
+    /// The lowest temperature the ordered branch was followed to, when it could not be
+    /// followed further (double precision exhausted), with the reason.
+    floor: Option<(f64, ())>,
 }
 
 impl<'c> PhaseFollower<'c> {
@@ -239,6 +260,7 @@ impl<'c> PhaseFollower<'c> {
             disordered: Disordered::new(primitive_lattice, primitive, field),
             last: None,
             tc_hint,
+            floor: None,
         }
     }
 
@@ -247,12 +269,24 @@ impl<'c> PhaseFollower<'c> {
         if !(t.is_finite() && t > 0.0) {
             return Err(SolveError::BadTemperature { t });
         }
+        if let Some((floor, _)) = self.floor {
+            if t < floor {
+                return Err(self.precision_limit(floor, t));
+            }
+        }
         if let Some(Last::Ordered { t: tw, signs, x }) = self.last.clone() {
-            if let Ok((signs, x)) = self.continue_ordered(tw, &signs, &x, t) {
-                if let Some(p) = self.ordered_point(t, &signs, &x)? {
-                    self.last = Some(Last::Ordered { t, signs, x });
-                    return Ok(p);
+            match self.continue_ordered(tw, &signs, &x, t) {
+                Ok((signs, x)) => {
+                    if let Some(p) = self.ordered_point(t, &signs, &x)? {
+                        self.last = Some(Last::Ordered { t, signs, x });
+                        return Ok(p);
+                    }
                 }
+                Err(_) if t < tw && self.cell.interior_sites => {
+                    self.floor = Some((tw, ()));
+                    return Err(self.precision_limit(tw, t));
+                }
+                Err(_) => {}
             }
         }
         let cold = self.last.is_none();
@@ -295,6 +329,19 @@ impl<'c> PhaseFollower<'c> {
                 t,
                 h: self.field,
             }),
+        }
+    }
+
+    /// The error of a level whose ordered branch cannot be followed below `tw`.
+    fn precision_limit(&self, tw: f64, t: f64) -> SolveError {
+        SolveError::PrecisionLimit {
+            level: self.cell.level.name.clone(),
+            t,
+            h: self.field,
+            detail: format!(
+                "the ordered state could not be followed below T = {}: this level's clusters contain sites together with all their neighbours, whose flips are nearly forced at low temperature, and its cluster probabilities then span more decades than double precision resolves; levels without such sites (pair, plaquette, ...) reach any temperature",
+                crate::report_num(tw)
+            ),
         }
     }
 
@@ -439,7 +486,11 @@ impl<'c> PhaseFollower<'c> {
             });
         }
         let all = Block::all(&self.cell.level);
-        let mut sol = minimise(&f, x0, &all, NewtonOptions::default())?;
+        let opts = NewtonOptions {
+            max_iterations: 80,
+            ..NewtonOptions::default()
+        };
+        let mut sol = minimise(&f, x0, &all, opts)?;
         for _ in 0..4 {
             let Some(h) = f.hessian_block(&sol.x, &all.vars, &all.pos) else {
                 break;
@@ -470,13 +521,42 @@ impl<'c> PhaseFollower<'c> {
                 alpha *= 0.5;
             }
             let Some(x) = moved else { break };
-            sol = minimise(&f, x, &all, NewtonOptions::default())?;
+            sol = minimise(&f, x, &all, opts)?;
         }
         Ok(sol.x)
     }
 
-    /// The ordered branch from its state at `tw` to `t`, directly or in sub-steps; the
-    /// sign pattern is renewed from the result.
+    /// One continuation step of the ordered branch from `tw` to `t`. Flip probabilities
+    /// go as e^{−ΔE/T}, so `ζ(t) ≈ ζ(tw)^{tw/t}` predicts the new state far better than
+    /// ζ(tw) itself when T is low; Newton starts there.
+    fn step_ordered(
+        &self,
+        tw: f64,
+        signs: &[f64],
+        x: &[f64],
+        t: f64,
+    ) -> Result<Vec<f64>, SolveError> {
+        let predicted: Vec<f64> = x
+            .iter()
+            .map(|&z| {
+                if z > 0.0 && z < 0.5 {
+                    z.powf(tw / t)
+                } else {
+                    z
+                }
+            })
+            .collect();
+        let f = self.cell_functional(t, signs);
+        if f.feasible(&predicted) {
+            if let Ok(y) = self.solve_ordered(t, signs, predicted) {
+                return Ok(y);
+            }
+        }
+        self.solve_ordered(t, signs, x.to_vec())
+    }
+
+    /// The ordered branch from its state at `tw` to `t`, directly or in sub-steps evenly
+    /// spaced in 1/T; the sign pattern is renewed from the result.
     fn continue_ordered(
         &self,
         tw: f64,
@@ -484,18 +564,22 @@ impl<'c> PhaseFollower<'c> {
         x: &[f64],
         t: f64,
     ) -> Result<(Vec<f64>, Vec<f64>), SolveError> {
-        let direct = self.solve_ordered(t, signs, x.to_vec());
-        let solved = match direct {
+        let solved = match self.step_ordered(tw, signs, x, t) {
             Ok(y) => y,
             Err(e) => {
                 let mut result = Err(e);
-                for steps in [4usize, 16, 64] {
+                for steps in [8usize, 32] {
+                    let (bw, b) = (1.0 / tw, 1.0 / t);
                     let mut cur = x.to_vec();
+                    let mut t_cur = tw;
                     let mut ok = true;
                     for k in 1..=steps {
-                        let tk = tw * (t / tw).powf(k as f64 / steps as f64);
-                        match self.solve_ordered(tk, signs, cur.clone()) {
-                            Ok(y) => cur = y,
+                        let tk = 1.0 / (bw + (b - bw) * k as f64 / steps as f64);
+                        match self.step_ordered(t_cur, signs, &cur, tk) {
+                            Ok(y) => {
+                                cur = y;
+                                t_cur = tk;
+                            }
                             Err(e) => {
                                 result = Err(e);
                                 ok = false;
@@ -564,7 +648,15 @@ impl<'c> PhaseFollower<'c> {
             .collect();
         let f = self.cell_functional(t, &signs);
         let mut best: Option<(Vec<f64>, Vec<f64>, PhasePoint)> = None;
-        for amp in [0.5, 0.9, 0.99, 0.2] {
+        // Far below Tc a product state is a poor start (its flip probabilities are off by
+        // tens of decades): continuation from near Tc is faster and surer.
+        let far_below = self.tc_hint.is_some_and(|tc| t < 0.5 * tc);
+        let amplitudes: &[f64] = if far_below {
+            &[]
+        } else {
+            &[0.5, 0.9, 0.99, 0.2]
+        };
+        for &amp in amplitudes {
             // A slight, fixed asymmetry keeps Newton off the pattern's symmetric saddles.
             let m: Vec<f64> = pattern
                 .iter()
@@ -594,6 +686,7 @@ impl<'c> PhaseFollower<'c> {
         }
         if best.is_none() {
             if let Some(tc) = self.tc_hint.filter(|&tc| t < 0.8 * tc) {
+                let _ = &f;
                 // Cold start far below Tc: start near Tc and cool down to t.
                 let t0 = 0.8 * tc;
                 if let Some((s0, x0, _)) = self.start_ordered(t0, None)? {

@@ -134,14 +134,27 @@ impl SweepReport {
             ));
         }
         for l in &self.levels {
+            // One note per reason (the engine's message without its own T and h), with
+            // the points it concerns.
+            let mut reasons: Vec<(String, Vec<String>)> = Vec::new();
             for o in &l.omitted {
-                notes.push(format!(
-                    "omitted: level `{}` at T = {}, h = {}: {}",
-                    l.level,
-                    num(o.temperature),
-                    num(o.field),
-                    o.reason
-                ));
+                let at = format!("T = {}, h = {}", num(o.temperature), num(o.field));
+                let reason = o
+                    .reason
+                    .split_once(&format!("{at}: "))
+                    .map_or(o.reason.clone(), |(_, r)| r.to_string());
+                match reasons.iter_mut().find(|r| r.0 == reason) {
+                    Some(r) => r.1.push(at),
+                    None => reasons.push((reason, vec![at])),
+                }
+            }
+            for (reason, at) in reasons {
+                let shown = if at.len() > 4 {
+                    format!("{} … {} ({} points)", at[0], at[at.len() - 1], at.len())
+                } else {
+                    at.join("; ")
+                };
+                notes.push(format!("omitted: level `{}` at {shown}: {reason}", l.level));
             }
         }
         if let (Some(panels), Some(form)) = (plotted, &self.exact) {
