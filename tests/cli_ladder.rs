@@ -164,6 +164,16 @@ fn square_ladder_against_onsager() {
     );
     // γ = 1 + ψ > 1: the amplitudes grow as the rungs approach Tc*.
     assert!(cam["gamma"].as_f64().unwrap() > 1.0);
+    // γ = 7/4 was first obtained by Barouch, McCoy & Wu (1973), Phys. Rev. Lett. 31, 1409;
+    // the note cites them before the longer paper of 1976.
+    assert!(
+        has_note(
+            &doc,
+            "7/4 (Barouch, McCoy & Wu 1973, Phys. Rev. Lett. 31, 1409"
+        ),
+        "{:?}",
+        notes(&doc)
+    );
 }
 
 /// The file's own cluster rungs without the 4×4 block (pair, plaquette, 3×3): three
@@ -470,7 +480,7 @@ fn csv_and_table_shapes() {
 /// `cargo test --release --test cli_ladder -- --ignored`.
 /// The full square ladder with the 4×4 block: the coherent-anomaly Tc* lies within 1 %
 /// of Onsager's 2.269185 (Onsager 1944), and γ moves toward the exact 7/4 (Onsager/Yang;
-/// Wu, McCoy, Tracy & Barouch 1976) when the 4×4 block joins pair, plaquette and 3×3.
+/// Barouch, McCoy & Wu 1973, Phys. Rev. Lett. 31, 1409) when the 4×4 block joins pair, plaquette and 3×3.
 #[test]
 #[ignore]
 fn square_ladder_with_the_4x4_block_converges() {

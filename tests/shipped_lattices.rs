@@ -336,12 +336,12 @@ fn exact_reference_temperatures_match_their_closed_forms() {
             2.0 / (2.0 + 3f64.sqrt()).ln(),
             "Houtappel (1950)",
         ),
-        // Kanô & Naya (1953), Prog. Theor. Phys. 10, 158 (volume and page from memory):
-        // Tc = 4J/ln(3 + 2√3).
+        // Syozi (1951), Prog. Theor. Phys. 6, 306, who first obtained it (volume and page
+        // from memory): Tc = 4J/ln(3 + 2√3).
         (
             "kagome",
             4.0 / (3.0 + 2.0 * 3f64.sqrt()).ln(),
-            "Kanô & Naya (1953)",
+            "Syozi (1951)",
         ),
     ];
     for (stem, tc, author) in cases {
@@ -430,4 +430,35 @@ fn reference_tc_lies_below_the_bethe_and_mean_field_values() {
             r.tc
         );
     }
+}
+
+#[test]
+fn diamond_hexagons_is_ill_posed_and_says_so() {
+    // The chair-hexagon level on the diamond lattice has a paramagnetic solution at
+    // T = 2.95 but none at the pair-level Tc 2/ln 2 = 2.885 (Bethe 1935, z = 4): its
+    // paramagnetic branch ends above the pair Tc, so the level can give no Tc.
+    use rungs::solve::{solve_equilibrium, state::magnetization};
+    let lattice = load("diamond");
+    let hexagons = level("diamond", "hexagons");
+    let above = solve_equilibrium(&hexagons, 2.95, 0.0, None).expect("paramagnet at T = 2.95");
+    assert!(
+        magnetization(&hexagons, &above.solution.x).abs() < 1e-9,
+        "paramagnetic at 2.95"
+    );
+    assert!(
+        solve_equilibrium(&hexagons, 2.0 / 2f64.ln(), 0.0, None).is_err(),
+        "no paramagnetic solution is expected at the pair Tc"
+    );
+    let description = lattice.description().unwrap();
+    assert!(
+        description.contains("ill-posed") && description.contains("no Tc"),
+        "diamond.yaml should say that `hexagons` is ill-posed: {description}"
+    );
+    let docs =
+        std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/lattices.md"))
+            .unwrap();
+    assert!(
+        docs.contains("`hexagons` (ill-posed, no Tc)"),
+        "docs/lattices.md table"
+    );
 }

@@ -5,7 +5,9 @@
 //! (Cholesky succeeds), otherwise raised until it is; the step is halved until the new
 //! point is feasible and satisfies Armijo's condition `F(x + αd) ≤ F(x) + 10⁻⁴ α ∇F·d`.
 //! A failed line search raises μ, turning the step toward steepest descent, so every
-//! accepted step lowers F (the same guarantee as Kikuchi's natural iteration, 1974).
+//! accepted step lowers F, for any level (Kikuchi's natural iteration, 1974, lowers F at
+//! every step only when the level's entropy coefficients meet a sufficient condition:
+//! Pretti 2005, J. Stat. Phys., doi:10.1007/s10955-005-4426-x).
 
 use nalgebra::{DMatrix, DVector};
 
