@@ -61,6 +61,10 @@ pub struct InspectArgs {
     /// The lattice file, `--format` and `--output`.
     #[command(flatten)]
     pub common: CommonArgs,
+    /// Also draw a patch of the lattice into this SVG file: sites, bonds coloured by
+    /// coupling, and one translate of each level's cluster shapes.
+    #[arg(long, value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
 }
 
 /// `rungs tc LATTICE [--levels a,b] [--supercell 2x2]`.

@@ -1,0 +1,376 @@
+//! The `inspect --plot` figure: a patch of the lattice as the file describes it.
+//!
+//! Sites are black dots (those of cell 0 named); each bond is a line coloured by its
+//! coupling (one legend entry per coupling, with J); one translate of every cluster
+//! shape of each named level is drawn near the middle of the patch as a translucent
+//! hull with the level's colour (one legend entry per level). It is the quickest way to
+//! see what a file really says: a missing bond, a coupling on the wrong bonds, or a
+//! level whose shapes cover only part of the lattice show at a glance.
+//!
+//! Coordinates are Cartesian (`Σ_k n_k v_k + r_a`). 2D lattices are drawn in their
+//! plane, 1D lattices along a line, 3D lattices in an oblique (cabinet-style) projection
+//! `(x + ½ z cos 30°, y + ½ z sin 30°)`. The legend has a panel of its own on the right. [`draw`] draws on any plotters drawing area
+//! (SVG or bitmap); [`write`] renders SVG and writes it atomically.
+
+use std::path::Path;
+
+use plotters::coord::Shift;
+use plotters::prelude::*;
+
+use rungs_lattice::model::cell_add;
+use rungs_lattice::{Cell, Cluster, Lattice, Level};
+
+use super::style::PALETTE;
+use crate::error::CliError;
+use crate::output::write::write_atomic;
+
+/// Figure size in pixels.
+pub const SIZE: (u32, u32) = (1100, 800);
+const MARGIN: u32 = 20;
+const CAPTION: u32 = 40;
+/// Width of the legend panel on the right, in pixels.
+const LEGEND: u32 = 300;
+const SITE: RGBColor = RGBColor(20, 20, 20);
+
+/// Draw the figure for `lattice` and its built `levels` and write it to `path` as SVG.
+pub fn write(path: &Path, lattice: &Lattice, levels: &[Level]) -> Result<(), CliError> {
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
+        draw(&root, lattice, levels).map_err(|e| CliError::Write {
+            path: path.to_path_buf(),
+            source: std::io::Error::other(format!("drawing the figure failed: {e}")),
+        })?;
+        root.present().map_err(|e| CliError::Write {
+            path: path.to_path_buf(),
+            source: std::io::Error::other(format!("drawing the figure failed: {e}")),
+        })?;
+    }
+    write_atomic(path, svg.as_bytes())
+}
+
+/// The projected 2D position of site `a` in cell `c`.
+fn position(lattice: &Lattice, a: usize, c: Cell) -> (f64, f64) {
+    let mut r = lattice.basis()[a].position;
+    for (n, v) in c.iter().zip(lattice.vectors()) {
+        for (x, vx) in r.iter_mut().zip(v) {
+            *x += f64::from(*n) * vx;
+        }
+    }
+    match lattice.dimension() {
+        3 => {
+            let (c30, s30) = (0.5 * 3f64.sqrt() / 2.0, 0.5 * 0.5);
+            (r[0] + c30 * r[2], r[1] + s30 * r[2])
+        }
+        _ => (r[0], r[1]),
+    }
+}
+
+/// The cells of the patch: `n` along each of the lattice's dimensions.
+fn patch_cells(dimension: usize, n: i32) -> Vec<Cell> {
+    let span = |k: usize| if k < dimension { 0..n } else { 0..1 };
+    let mut cells = Vec::new();
+    for z in span(2) {
+        for y in span(1) {
+            for x in span(0) {
+                cells.push([x, y, z]);
+            }
+        }
+    }
+    cells
+}
+
+/// Cells per side: enough for the widest cluster with a cell to spare on each side.
+fn patch_size(lattice: &Lattice, clusters: &[&Cluster]) -> i32 {
+    let widest = clusters
+        .iter()
+        .map(|c| {
+            (0..lattice.dimension())
+                .map(|k| {
+                    let ks: Vec<i32> = c.sites().map(|(_, cell)| cell[k]).collect();
+                    ks.iter().max().unwrap_or(&0) - ks.iter().min().unwrap_or(&0) + 1
+                })
+                .max()
+                .unwrap_or(1)
+        })
+        .max()
+        .unwrap_or(1);
+    let least = match lattice.dimension() {
+        1 => 8,
+        2 => 4,
+        _ => 2,
+    };
+    (widest + 2).max(least).min(8)
+}
+
+/// The convex hull of `points` (Andrew's monotone chain), counter-clockwise.
+fn hull(mut points: Vec<(f64, f64)>) -> Vec<(f64, f64)> {
+    points.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1)));
+    points.dedup_by(|a, b| (a.0 - b.0).abs() < 1e-9 && (a.1 - b.1).abs() < 1e-9);
+    if points.len() < 3 {
+        return points;
+    }
+    let cross = |o: (f64, f64), a: (f64, f64), b: (f64, f64)| {
+        (a.0 - o.0) * (b.1 - o.1) - (a.1 - o.1) * (b.0 - o.0)
+    };
+    let mut lower: Vec<(f64, f64)> = Vec::new();
+    for &p in &points {
+        while lower.len() >= 2 && cross(lower[lower.len() - 2], lower[lower.len() - 1], p) <= 0.0 {
+            lower.pop();
+        }
+        lower.push(p);
+    }
+    let mut upper: Vec<(f64, f64)> = Vec::new();
+    for &p in points.iter().rev() {
+        while upper.len() >= 2 && cross(upper[upper.len() - 2], upper[upper.len() - 1], p) <= 0.0 {
+            upper.pop();
+        }
+        upper.push(p);
+    }
+    lower.pop();
+    upper.pop();
+    lower.extend(upper);
+    lower
+}
+
+/// Ranges around `points` with the same scale on both axes in a `w × h` pixel area.
+fn equal_aspect(points: &[(f64, f64)], w: f64, h: f64) -> ((f64, f64), (f64, f64)) {
+    let (mut x0, mut x1, mut y0, mut y1) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
+    for &(x, y) in points {
+        x0 = x0.min(x);
+        x1 = x1.max(x);
+        y0 = y0.min(y);
+        y1 = y1.max(y);
+    }
+    if x0 > x1 {
+        return ((-1.0, 1.0), (-1.0, 1.0));
+    }
+    let pad = 0.08 * (x1 - x0).max(y1 - y0).max(1.0);
+    let (cx, cy) = (0.5 * (x0 + x1), 0.5 * (y0 + y1));
+    let mut half_w = 0.5 * (x1 - x0) + pad;
+    let mut half_h = 0.5 * (y1 - y0) + pad;
+    if half_w / half_h < w / h {
+        half_w = half_h * w / h;
+    } else {
+        half_h = half_w * h / w;
+    }
+    ((cx - half_w, cx + half_w), (cy - half_h, cy + half_h))
+}
+
+/// The shapes drawn for one level: its maximal clusters of more than two sites.
+fn shapes(level: &Level) -> Vec<&Cluster> {
+    level.maximal.iter().filter(|m| m.len() > 2).collect()
+}
+
+/// One legend entry: a sample (bond line, level patch or site dot) and its text.
+enum Entry {
+    Bond(RGBColor, String),
+    Level(RGBColor, String),
+    Site(String),
+}
+
+/// The legend, drawn as a column of entries in its own panel.
+fn draw_legend<DB: DrawingBackend>(
+    panel: &DrawingArea<DB, Shift>,
+    entries: &[Entry],
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    let font = ("sans-serif", 15).into_font().color(&SITE);
+    let top = i32::try_from(CAPTION + MARGIN).unwrap_or(60);
+    for (i, e) in entries.iter().enumerate() {
+        let y = top + 26 * i32::try_from(i).unwrap_or(0);
+        let text = match e {
+            Entry::Bond(c, t) => {
+                panel.draw(&PathElement::new(vec![(8, y), (36, y)], c.stroke_width(3)))?;
+                t
+            }
+            Entry::Level(c, t) => {
+                panel.draw(&Rectangle::new(
+                    [(8, y - 8), (36, y + 8)],
+                    c.mix(0.25).filled(),
+                ))?;
+                panel.draw(&Rectangle::new(
+                    [(8, y - 8), (36, y + 8)],
+                    c.stroke_width(3),
+                ))?;
+                t
+            }
+            Entry::Site(t) => {
+                panel.draw(&Circle::new((22, y), 4, SITE.filled()))?;
+                t
+            }
+        };
+        panel.draw(&Text::new(text.clone(), (44, y - 8), font.clone()))?;
+    }
+    Ok(())
+}
+
+/// Draw the figure on `area` (any plotters backend).
+pub fn draw<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    lattice: &Lattice,
+    levels: &[Level],
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    area.fill(&WHITE)?;
+    let (w, h) = area.dim_in_pixel();
+    let (area, panel) = area.split_horizontally(w.saturating_sub(LEGEND));
+    let named: Vec<&Level> = levels
+        .iter()
+        .filter(|l| l.name != "site" && l.name != "pair" && !shapes(l).is_empty())
+        .collect();
+    let all_shapes: Vec<&Cluster> = named.iter().flat_map(|l| shapes(l)).collect();
+    let n = patch_size(lattice, &all_shapes);
+    let cells = patch_cells(lattice.dimension(), n);
+    let dims = lattice.dimension();
+    // One translate of every shape, its mean cell moved to the middle of the patch.
+    let placed: Vec<(usize, Vec<(usize, Cell)>)> = named
+        .iter()
+        .enumerate()
+        .flat_map(|(k, l)| {
+            shapes(l).into_iter().map(move |c| {
+                let mut t = [0; 3];
+                for (d, x) in t.iter_mut().enumerate().take(dims) {
+                    let mean =
+                        c.sites().map(|(_, cell)| f64::from(cell[d])).sum::<f64>() / c.len() as f64;
+                    *x = (0.5 * f64::from(n - 1) - mean).round() as i32;
+                }
+                let sites: Vec<(usize, Cell)> =
+                    c.sites().map(|(a, cell)| (a, cell_add(cell, t))).collect();
+                (k, sites)
+            })
+        })
+        .collect();
+    let mut sites: Vec<(usize, Cell)> = cells
+        .iter()
+        .flat_map(|&c| (0..lattice.sites_per_cell()).map(move |a| (a, c)))
+        .collect();
+    for (_, s) in &placed {
+        for &site in s {
+            if !sites.contains(&site) {
+                sites.push(site);
+            }
+        }
+    }
+    let points: Vec<(f64, f64)> = sites
+        .iter()
+        .map(|&(a, c)| position(lattice, a, c))
+        .collect();
+    let plot_w = f64::from(w.saturating_sub(LEGEND + 2 * MARGIN).max(1));
+    let plot_h = f64::from(h.saturating_sub(2 * MARGIN + CAPTION).max(1));
+    let ((x0, x1), (y0, y1)) = equal_aspect(&points, plot_w, plot_h);
+    let view = match lattice.dimension() {
+        1 => "along a line",
+        2 => "in the plane",
+        _ => "in an oblique projection",
+    };
+    let mut chart = ChartBuilder::on(&area)
+        .caption(
+            format!("lattice `{}`: {n} cells per side, {view}", lattice.name()),
+            ("sans-serif", 22),
+        )
+        .margin(MARGIN)
+        .build_cartesian_2d(x0..x1, y0..y1)?;
+    let mut legend = Vec::new();
+
+    // Level shapes: translucent hulls under the bonds, outlines over them.
+    let couplings = lattice.bonds_per_coupling();
+    let level_colour = |k: usize| PALETTE[(couplings.len() + k) % PALETTE.len()];
+    let outlines: Vec<(usize, Vec<(f64, f64)>)> = placed
+        .iter()
+        .map(|(k, s)| {
+            let pts = s.iter().map(|&(a, c)| position(lattice, a, c)).collect();
+            (*k, hull(pts))
+        })
+        .collect();
+    // Lighter in 3D, where projected shapes overlap.
+    let fill = if dims == 3 { 0.07 } else { 0.12 };
+    for (k, outline) in outlines.iter().filter(|(_, o)| o.len() >= 3) {
+        chart.draw_series(std::iter::once(Polygon::new(
+            outline.clone(),
+            level_colour(*k).mix(fill).filled(),
+        )))?;
+    }
+    for (k, level) in named.iter().enumerate() {
+        let mut sizes: Vec<usize> = shapes(level).iter().map(|c| c.len()).collect();
+        let count = sizes.len();
+        sizes.sort_unstable();
+        sizes.dedup();
+        let sizes: Vec<String> = sizes.iter().map(usize::to_string).collect();
+        legend.push(Entry::Level(
+            level_colour(k),
+            format!(
+                "level `{}`: {count} shape{} of {} sites",
+                level.name,
+                if count == 1 { "" } else { "s" },
+                sizes.join("/")
+            ),
+        ));
+    }
+
+    // Bonds, one series per coupling, between sites drawn.
+    for (i, (name, j, _)) in couplings.iter().enumerate() {
+        let colour = PALETTE[i % PALETTE.len()];
+        let mut lines = Vec::new();
+        for b in lattice.bonds().iter().filter(|b| &b.coupling == name) {
+            for &(a, c) in &sites {
+                let to = (b.to, cell_add(c, b.cell));
+                if a == b.from && sites.contains(&to) {
+                    lines.push(PathElement::new(
+                        vec![position(lattice, a, c), position(lattice, to.0, to.1)],
+                        colour.stroke_width(2),
+                    ));
+                }
+            }
+        }
+        chart.draw_series(lines)?;
+        legend.push(Entry::Bond(colour, format!("bond {name} (J = {j})")));
+    }
+    for (k, outline) in &outlines {
+        let mut closed = outline.clone();
+        let width = if outline.len() >= 3 {
+            closed.push(outline[0]);
+            3
+        } else {
+            6 // a collinear shape (1D): a thick segment over its bonds
+        };
+        chart.draw_series(std::iter::once(PathElement::new(
+            closed,
+            level_colour(*k).stroke_width(width),
+        )))?;
+    }
+
+    // Sites on top; those of cell 0 named.
+    chart.draw_series(points.iter().map(|&p| Circle::new(p, 4, SITE.filled())))?;
+    let font = ("sans-serif", 15).into_font().color(&SITE);
+    chart.draw_series((0..lattice.sites_per_cell()).map(|a| {
+        EmptyElement::at(position(lattice, a, [0; 3]))
+            + Text::new(lattice.basis()[a].name.clone(), (6, -18), font.clone())
+    }))?;
+    legend.push(Entry::Site("site (named in cell 0)".into()));
+    draw_legend(&panel, &legend)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn hull_of_a_square_with_an_inner_point() {
+        let h = hull(vec![
+            (0.0, 0.0),
+            (1.0, 0.0),
+            (0.5, 0.5),
+            (1.0, 1.0),
+            (0.0, 1.0),
+        ]);
+        assert_eq!(h, vec![(0.0, 0.0), (1.0, 0.0), (1.0, 1.0), (0.0, 1.0)]);
+        // Collinear points keep only the ends.
+        assert_eq!(hull(vec![(0.0, 0.0), (1.0, 0.0), (2.0, 0.0)]).len(), 2);
+    }
+
+    #[test]
+    fn equal_aspect_keeps_one_scale() {
+        let ((x0, x1), (y0, y1)) = equal_aspect(&[(0.0, 0.0), (4.0, 1.0)], 800.0, 400.0);
+        assert!(((x1 - x0) / (y1 - y0) - 2.0).abs() < 1e-12);
+        assert!(x0 < 0.0 && x1 > 4.0 && y0 < 0.0 && y1 > 1.0);
+    }
+}
