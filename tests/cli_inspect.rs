@@ -5,8 +5,11 @@
 
 use std::path::{Path, PathBuf};
 
-use assert_cmd::Command;
 use serde_json::Value;
+
+mod common;
+
+use common::rungs;
 
 /// Shipped files whose lattice is known: (file stem, coordination z of every site,
 /// bipartite). Coordination numbers and bipartiteness: common practice.
@@ -22,13 +25,6 @@ const KNOWN: &[(&str, u64, bool)] = &[
     ("fcc", 12, false),
     ("diamond", 4, true),
 ];
-
-fn rungs() -> Command {
-    let mut cmd = Command::new(env!("CARGO_BIN_EXE_rungs"));
-    cmd.current_dir(env!("CARGO_MANIFEST_DIR"))
-        .env("CI", "true");
-    cmd
-}
 
 fn lattice_files() -> Vec<PathBuf> {
     let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("lattices");
@@ -360,18 +356,15 @@ fn one_plaquette_shape_on_the_antiferromagnets_two_site_cell_is_flagged() {
     assert_eq!(inspect_json(both)["warnings"], serde_json::json!([]));
 
     let plaquette_tc = |file: &Path| -> f64 {
-        let out = rungs()
-            .arg("tc")
-            .arg(file)
-            .args(["--levels", "plaquette", "--format", "json"])
-            .output()
-            .unwrap();
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
-        let doc: Value = serde_json::from_slice(&out.stdout).unwrap();
+        let out = common::ok(&[
+            "tc",
+            file.to_str().unwrap(),
+            "--levels",
+            "plaquette",
+            "--format",
+            "json",
+        ]);
+        let doc: Value = serde_json::from_str(&out).unwrap();
         doc["levels"][0]["tc"].as_f64().unwrap()
     };
     let (t_one, t_both) = (plaquette_tc(one), plaquette_tc(both));
@@ -387,7 +380,7 @@ fn plot_draws_sites_bonds_and_level_shapes() {
     for (stem, words) in [
         (
             "chain",
-            vec!["bond J (J = 1)", "level `triple`: 1 shape of 3 sites"],
+            vec!["bond J (J = 1)", "level `triple`", "1 shape of 3 sites"],
         ),
         (
             "layered_magnet",
@@ -395,24 +388,19 @@ fn plot_draws_sites_bonds_and_level_shapes() {
                 "bond J_in (J = 1)",
                 "bond J_perp (J = 0.1)",
                 "level `plaquette`",
-                "level `box`: 1 shape of 8 sites",
+                "level `box`",
+                "1 shape of 8 sites",
             ],
         ),
-        ("kagome", vec!["level `triangles`: 2 shapes of 3 sites"]),
+        ("kagome", vec!["level `triangles`", "2 shapes of 3 sites"]),
     ] {
         let svg_path = dir.path().join(format!("{stem}.svg"));
-        let out = rungs()
-            .arg("inspect")
-            .arg(format!("lattices/{stem}.yaml"))
-            .arg("--plot")
-            .arg(&svg_path)
-            .output()
-            .unwrap();
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
+        common::ok(&[
+            "inspect",
+            &format!("lattices/{stem}.yaml"),
+            "--plot",
+            svg_path.to_str().unwrap(),
+        ]);
         let svg = std::fs::read_to_string(&svg_path).unwrap();
         assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
         for w in words {

@@ -1,9 +1,10 @@
 //! The `inspect --plot` figure: a patch of the lattice as the file describes it.
 //!
-//! Sites are black dots (those of cell 0 named); each bond is a line coloured by its
-//! coupling (one legend entry per coupling, with J); one translate of every cluster
-//! shape of each named level is drawn near the middle of the patch as a translucent
-//! hull with the level's colour (one legend entry per level). It is the quickest way to
+//! One panel per named level: a patch of the lattice, sites as black dots (those of cell
+//! 0 named), each bond a line coloured by its coupling (one legend entry per coupling,
+//! with J), and one translate of every cluster shape of the level drawn near the middle
+//! of the patch as a translucent hull in the level's colour (one legend entry per
+//! level). It is the quickest way to
 //! see what a file really says: a missing bond, a coupling on the wrong bonds, or a
 //! level whose shapes cover only part of the lattice show at a glance.
 //!
@@ -25,9 +26,10 @@ use crate::error::CliError;
 use crate::output::write::write_atomic;
 
 /// Figure size in pixels.
-pub const SIZE: (u32, u32) = (1100, 800);
+pub const SIZE: (u32, u32) = (1200, 860);
 const MARGIN: u32 = 20;
-const CAPTION: u32 = 40;
+/// Height of a panel's own caption, in pixels.
+const PANEL_CAPTION: u32 = 30;
 /// Width of the legend panel on the right, in pixels.
 const LEGEND: u32 = 300;
 const SITE: RGBColor = RGBColor(20, 20, 20);
@@ -95,12 +97,12 @@ fn patch_size(lattice: &Lattice, clusters: &[&Cluster]) -> i32 {
         })
         .max()
         .unwrap_or(1);
-    let least = match lattice.dimension() {
-        1 => 8,
-        2 => 4,
-        _ => 2,
-    };
-    (widest + 2).max(least).min(8)
+    match lattice.dimension() {
+        1 => (widest + 2).clamp(8, 12),
+        2 => (widest + 2).clamp(4, 8),
+        // 3D patches get busy fast in projection: as small as the clusters allow.
+        _ => (widest + 1).clamp(2, 4),
+    }
 }
 
 /// The convex hull of `points` (Andrew's monotone chain), counter-clockwise.
@@ -175,9 +177,8 @@ fn draw_legend<DB: DrawingBackend>(
     entries: &[Entry],
 ) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
     let font = ("sans-serif", 15).into_font().color(&SITE);
-    let top = i32::try_from(CAPTION + MARGIN).unwrap_or(60);
-    for (i, e) in entries.iter().enumerate() {
-        let y = top + 26 * i32::try_from(i).unwrap_or(0);
+    let mut y = i32::try_from(MARGIN + PANEL_CAPTION).unwrap_or(50);
+    for e in entries {
         let text = match e {
             Entry::Bond(c, t) => {
                 panel.draw(&PathElement::new(vec![(8, y), (36, y)], c.stroke_width(3)))?;
@@ -199,116 +200,89 @@ fn draw_legend<DB: DrawingBackend>(
                 t
             }
         };
-        panel.draw(&Text::new(text.clone(), (44, y - 8), font.clone()))?;
+        // Long entries continue on a second line, after the first ": ".
+        let lines: Vec<&str> = match text.split_once(": ") {
+            Some((head, tail)) if text.chars().count() > 30 => vec![head, tail],
+            _ => vec![text.as_str()],
+        };
+        for (i, line) in lines.iter().enumerate() {
+            let dy = 18 * i32::try_from(i).unwrap_or(0);
+            panel.draw(&Text::new(line.to_string(), (44, y - 8 + dy), font.clone()))?;
+        }
+        y += 8 + 18 * i32::try_from(lines.len()).unwrap_or(1);
     }
     Ok(())
 }
 
-/// Draw the figure on `area` (any plotters backend).
-pub fn draw<DB: DrawingBackend>(
+/// The level drawn in one panel: its index (for its colour) and the level.
+type PanelLevel<'a> = Option<(usize, &'a Level)>;
+
+/// One panel: a patch of the lattice with its bonds and sites, and one translate of each
+/// shape of `level` (if any) near the middle.
+fn draw_panel<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     lattice: &Lattice,
-    levels: &[Level],
+    level: PanelLevel,
+    colour_of: &dyn Fn(usize) -> RGBColor,
 ) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
-    area.fill(&WHITE)?;
-    let (w, h) = area.dim_in_pixel();
-    let (area, panel) = area.split_horizontally(w.saturating_sub(LEGEND));
-    let named: Vec<&Level> = levels
-        .iter()
-        .filter(|l| l.name != "site" && l.name != "pair" && !shapes(l).is_empty())
-        .collect();
-    let all_shapes: Vec<&Cluster> = named.iter().flat_map(|l| shapes(l)).collect();
-    let n = patch_size(lattice, &all_shapes);
-    let cells = patch_cells(lattice.dimension(), n);
     let dims = lattice.dimension();
+    let shown: Vec<&Cluster> = level.map(|(_, l)| shapes(l)).unwrap_or_default();
+    let n = patch_size(lattice, &shown);
+    let cells = patch_cells(dims, n);
     // One translate of every shape, its mean cell moved to the middle of the patch.
-    let placed: Vec<(usize, Vec<(usize, Cell)>)> = named
+    let placed: Vec<Vec<(usize, Cell)>> = shown
         .iter()
-        .enumerate()
-        .flat_map(|(k, l)| {
-            shapes(l).into_iter().map(move |c| {
-                let mut t = [0; 3];
-                for (d, x) in t.iter_mut().enumerate().take(dims) {
-                    let mean =
-                        c.sites().map(|(_, cell)| f64::from(cell[d])).sum::<f64>() / c.len() as f64;
-                    *x = (0.5 * f64::from(n - 1) - mean).round() as i32;
-                }
-                let sites: Vec<(usize, Cell)> =
-                    c.sites().map(|(a, cell)| (a, cell_add(cell, t))).collect();
-                (k, sites)
-            })
+        .map(|c| {
+            let mut t = [0; 3];
+            for (d, x) in t.iter_mut().enumerate().take(dims) {
+                let mean =
+                    c.sites().map(|(_, cell)| f64::from(cell[d])).sum::<f64>() / c.len() as f64;
+                *x = (0.5 * f64::from(n - 1) - mean).round() as i32;
+            }
+            c.sites().map(|(a, cell)| (a, cell_add(cell, t))).collect()
         })
         .collect();
     let mut sites: Vec<(usize, Cell)> = cells
         .iter()
         .flat_map(|&c| (0..lattice.sites_per_cell()).map(move |a| (a, c)))
         .collect();
-    for (_, s) in &placed {
-        for &site in s {
-            if !sites.contains(&site) {
-                sites.push(site);
-            }
+    for &site in placed.iter().flatten() {
+        if !sites.contains(&site) {
+            sites.push(site);
         }
     }
     let points: Vec<(f64, f64)> = sites
         .iter()
         .map(|&(a, c)| position(lattice, a, c))
         .collect();
-    let plot_w = f64::from(w.saturating_sub(LEGEND + 2 * MARGIN).max(1));
-    let plot_h = f64::from(h.saturating_sub(2 * MARGIN + CAPTION).max(1));
+    let (w, h) = area.dim_in_pixel();
+    let plot_w = f64::from(w.saturating_sub(2 * MARGIN).max(1));
+    let plot_h = f64::from(h.saturating_sub(2 * MARGIN + PANEL_CAPTION).max(1));
     let ((x0, x1), (y0, y1)) = equal_aspect(&points, plot_w, plot_h);
-    let view = match lattice.dimension() {
-        1 => "along a line",
-        2 => "in the plane",
-        _ => "in an oblique projection",
+    let title = match level {
+        Some((_, l)) => format!("level `{}`", l.name),
+        None => "no cluster levels".to_string(),
     };
-    let mut chart = ChartBuilder::on(&area)
-        .caption(
-            format!("lattice `{}`: {n} cells per side, {view}", lattice.name()),
-            ("sans-serif", 22),
-        )
+    let mut chart = ChartBuilder::on(area)
+        .caption(title, ("sans-serif", 18))
         .margin(MARGIN)
         .build_cartesian_2d(x0..x1, y0..y1)?;
-    let mut legend = Vec::new();
-
-    // Level shapes: translucent hulls under the bonds, outlines over them.
-    let couplings = lattice.bonds_per_coupling();
-    let level_colour = |k: usize| PALETTE[(couplings.len() + k) % PALETTE.len()];
-    let outlines: Vec<(usize, Vec<(f64, f64)>)> = placed
+    let outlines: Vec<Vec<(f64, f64)>> = placed
         .iter()
-        .map(|(k, s)| {
-            let pts = s.iter().map(|&(a, c)| position(lattice, a, c)).collect();
-            (*k, hull(pts))
-        })
+        .map(|s| hull(s.iter().map(|&(a, c)| position(lattice, a, c)).collect()))
         .collect();
-    // Lighter in 3D, where projected shapes overlap.
+    let colour = level.map(|(k, _)| colour_of(k)).unwrap_or(SITE);
+    // Shapes: translucent hulls under the bonds (lighter in 3D, where projected shapes
+    // overlap), outlines over them.
     let fill = if dims == 3 { 0.07 } else { 0.12 };
-    for (k, outline) in outlines.iter().filter(|(_, o)| o.len() >= 3) {
-        chart.draw_series(std::iter::once(Polygon::new(
-            outline.clone(),
-            level_colour(*k).mix(fill).filled(),
-        )))?;
-    }
-    for (k, level) in named.iter().enumerate() {
-        let mut sizes: Vec<usize> = shapes(level).iter().map(|c| c.len()).collect();
-        let count = sizes.len();
-        sizes.sort_unstable();
-        sizes.dedup();
-        let sizes: Vec<String> = sizes.iter().map(usize::to_string).collect();
-        legend.push(Entry::Level(
-            level_colour(k),
-            format!(
-                "level `{}`: {count} shape{} of {} sites",
-                level.name,
-                if count == 1 { "" } else { "s" },
-                sizes.join("/")
-            ),
-        ));
-    }
-
-    // Bonds, one series per coupling, between sites drawn.
-    for (i, (name, j, _)) in couplings.iter().enumerate() {
-        let colour = PALETTE[i % PALETTE.len()];
+    chart.draw_series(
+        outlines
+            .iter()
+            .filter(|o| o.len() >= 3)
+            .map(|o| Polygon::new(o.clone(), colour.mix(fill).filled())),
+    )?;
+    for (i, (name, ..)) in lattice.bonds_per_coupling().iter().enumerate() {
+        let bond_colour = PALETTE[i % PALETTE.len()];
         let mut lines = Vec::new();
         for b in lattice.bonds().iter().filter(|b| &b.coupling == name) {
             for &(a, c) in &sites {
@@ -316,15 +290,14 @@ pub fn draw<DB: DrawingBackend>(
                 if a == b.from && sites.contains(&to) {
                     lines.push(PathElement::new(
                         vec![position(lattice, a, c), position(lattice, to.0, to.1)],
-                        colour.stroke_width(2),
+                        bond_colour.stroke_width(2),
                     ));
                 }
             }
         }
         chart.draw_series(lines)?;
-        legend.push(Entry::Bond(colour, format!("bond {name} (J = {j})")));
     }
-    for (k, outline) in &outlines {
+    for outline in &outlines {
         let mut closed = outline.clone();
         let width = if outline.len() >= 3 {
             closed.push(outline[0]);
@@ -334,17 +307,78 @@ pub fn draw<DB: DrawingBackend>(
         };
         chart.draw_series(std::iter::once(PathElement::new(
             closed,
-            level_colour(*k).stroke_width(width),
+            colour.stroke_width(width),
         )))?;
     }
-
     // Sites on top; those of cell 0 named.
-    chart.draw_series(points.iter().map(|&p| Circle::new(p, 4, SITE.filled())))?;
-    let font = ("sans-serif", 15).into_font().color(&SITE);
+    chart.draw_series(points.iter().map(|&p| Circle::new(p, 3, SITE.filled())))?;
+    let font = ("sans-serif", 14).into_font().color(&SITE);
     chart.draw_series((0..lattice.sites_per_cell()).map(|a| {
         EmptyElement::at(position(lattice, a, [0; 3]))
-            + Text::new(lattice.basis()[a].name.clone(), (6, -18), font.clone())
+            + Text::new(lattice.basis()[a].name.clone(), (5, -16), font.clone())
     }))?;
+    Ok(())
+}
+
+/// Draw the figure on `area` (any plotters backend): one panel per named level (the
+/// lattice alone when it has none), and a legend panel on the right.
+pub fn draw<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    lattice: &Lattice,
+    levels: &[Level],
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    area.fill(&WHITE)?;
+    let (w, _) = area.dim_in_pixel();
+    let named: Vec<&Level> = levels
+        .iter()
+        .filter(|l| l.name != "site" && l.name != "pair" && !shapes(l).is_empty())
+        .collect();
+    let couplings = lattice.bonds_per_coupling();
+    let colour_of = |k: usize| PALETTE[(couplings.len() + k) % PALETTE.len()];
+    let view = match lattice.dimension() {
+        1 => "along a line",
+        2 => "in the plane",
+        _ => "in an oblique projection",
+    };
+    let titled = area.titled(
+        &format!("lattice `{}`, {view}", lattice.name()),
+        ("sans-serif", 22),
+    )?;
+    let (body, panel) = titled.split_horizontally(w.saturating_sub(LEGEND));
+    let count = named.len().max(1);
+    let cols = (1..=count).find(|c| c * c >= count).unwrap_or(1);
+    let rows = count.div_ceil(cols);
+    let panels = body.split_evenly((rows, cols));
+    if named.is_empty() {
+        draw_panel(&panels[0], lattice, None, &colour_of)?;
+    }
+    for (k, level) in named.iter().enumerate() {
+        draw_panel(&panels[k], lattice, Some((k, level)), &colour_of)?;
+    }
+
+    let mut legend = Vec::new();
+    for (k, level) in named.iter().enumerate() {
+        let mut sizes: Vec<usize> = shapes(level).iter().map(|c| c.len()).collect();
+        let count = sizes.len();
+        sizes.sort_unstable();
+        sizes.dedup();
+        let sizes: Vec<String> = sizes.iter().map(usize::to_string).collect();
+        legend.push(Entry::Level(
+            colour_of(k),
+            format!(
+                "level `{}`: {count} shape{} of {} sites",
+                level.name,
+                if count == 1 { "" } else { "s" },
+                sizes.join("/")
+            ),
+        ));
+    }
+    for (i, (name, j, _)) in couplings.iter().enumerate() {
+        legend.push(Entry::Bond(
+            PALETTE[i % PALETTE.len()],
+            format!("bond {name} (J = {j})"),
+        ));
+    }
     legend.push(Entry::Site("site (named in cell 0)".into()));
     draw_legend(&panel, &legend)
 }
