@@ -26,7 +26,7 @@ fn exact_gamma(dimension: usize) -> Option<(&'static str, &'static str)> {
     match dimension {
         2 => Some((
             "7/4",
-            "exact; Wu, McCoy, Tracy & Barouch 1976, Phys. Rev. B 13, 316",
+            "exact; Barouch, McCoy & Wu 1973, Phys. Rev. Lett. 31, 1409; Wu, McCoy, Tracy & Barouch 1976, Phys. Rev. B 13, 316",
         )),
         3 => Some((
             "1.2371(1)",
@@ -233,8 +233,9 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
          *deviation* = Tc / reference − 1. χ̄ is the critical amplitude in χ ≈ χ̄ / (T − Tc) just above a \
          rung's Tc (per site). Extrapolations use the cluster rungs (pair and larger): coherent-anomaly \
          method χ̄_n = A (Tc_n − Tc*)^(−ψ), γ = 1 + ψ (Suzuki 1986, J. Phys. Soc. Jpn. 55, 4205), and the \
-         inverse-size line Tc_n = Tc* + b / N_n (Kikuchi & Brush 1967, J. Chem. Phys. 47, 195). Every \
-         level is an approximation, not a bound. The reference is the exact closed form where one applies, \
+         inverse-size line Tc_n = Tc* + b / N_n (Kikuchi & Brush 1967, J. Chem. Phys. 47, 195). For \
+         ferromagnets the `site` and `pair` Tc are rigorous upper bounds on the exact Tc (Griffiths 1967, \
+         Commun. Math. Phys. 6, 121; Fisher 1967); larger clusters are approximations, not bounds. The reference is the exact closed form where one applies, \
          else the lattice file's published value, else a seeded Binder-crossing Monte Carlo estimate \
          (Binder 1981, Z. Phys. B 43, 119).\n\n",
     );
@@ -247,7 +248,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         doc.push_str(&summary_row(path, l));
     }
     doc.push_str(
-        "\nγ of the Ising class: 7/4 in 2D (exact; Wu, McCoy, Tracy & Barouch 1976, Phys. Rev. B 13, 316), \
+        "\nγ of the Ising class: 7/4 in 2D (exact; Barouch, McCoy & Wu 1973, Phys. Rev. Lett. 31, 1409; Wu, McCoy, Tracy & Barouch 1976, Phys. Rev. B 13, 316), \
          1.2371(1) in 3D (high-temperature series; Butera & Comi 2002, Phys. Rev. B 65, 144431). \
          The 1D chain has no transition at T > 0 (Ising 1925, Z. Phys. 31, 253).\n\n",
     );

@@ -84,7 +84,7 @@ fn invalid_lattice() {
 #[test]
 fn bad_temperature_lists() {
     for temps in [
-        "3:1:0.1",
+        "1:3:-0.1",
         "1:2:0",
         "1:2:-0.5",
         "abc",

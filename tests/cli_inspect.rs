@@ -5,8 +5,11 @@
 
 use std::path::{Path, PathBuf};
 
-use assert_cmd::Command;
 use serde_json::Value;
+
+mod common;
+
+use common::rungs;
 
 /// Shipped files whose lattice is known: (file stem, coordination z of every site,
 /// bipartite). Coordination numbers and bipartiteness: common practice.
@@ -22,13 +25,6 @@ const KNOWN: &[(&str, u64, bool)] = &[
     ("fcc", 12, false),
     ("diamond", 4, true),
 ];
-
-fn rungs() -> Command {
-    let mut cmd = Command::new(env!("CARGO_BIN_EXE_rungs"));
-    cmd.current_dir(env!("CARGO_MANIFEST_DIR"))
-        .env("CI", "true");
-    cmd
-}
 
 fn lattice_files() -> Vec<PathBuf> {
     let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("lattices");
@@ -263,5 +259,160 @@ fn csv_has_one_row_per_level_and_region_group() {
         "triangular,triangles,3,6,1,1,1",
     ] {
         assert!(lines.contains(&row), "missing row `{row}` in\n{text}");
+    }
+}
+
+/// Shipped files whose levels draw a warning, with a word of it; every other shipped
+/// file has `warnings: []`.
+const WARNED: &[(&str, &str)] = &[(
+    "layered_magnet",
+    // The in-plane plaquette leaves the weak J_perp bonds as pairs, by design.
+    "J_perp",
+)];
+
+#[test]
+fn warnings_are_a_list_and_only_the_layered_demo_has_one() {
+    for file in lattice_files() {
+        let stem = file.file_stem().unwrap().to_str().unwrap().to_string();
+        let doc = inspect_json(&file);
+        let warnings = doc["warnings"]
+            .as_array()
+            .unwrap_or_else(|| panic!("{stem}: `warnings` is not a list"));
+        match WARNED.iter().find(|w| w.0 == stem) {
+            Some((_, word)) => assert!(
+                warnings.len() == 1 && warnings[0].as_str().unwrap().contains(word),
+                "{stem}: {warnings:?}"
+            ),
+            None => assert!(warnings.is_empty(), "{stem}: {warnings:?}"),
+        }
+    }
+}
+
+#[test]
+fn bonds_per_coupling_and_neighbours_say_what_the_bond_list_holds() {
+    let doc = inspect_json(Path::new("lattices/square_anisotropic.yaml"));
+    let couplings: Vec<(String, f64, u64)> = doc["bonds_per_coupling"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|c| {
+            (
+                c["coupling"].as_str().unwrap().to_string(),
+                c["j"].as_f64().unwrap(),
+                uint(c, "bonds"),
+            )
+        })
+        .collect();
+    assert_eq!(
+        couplings,
+        vec![("Jx".to_string(), 1.0, 1), ("Jy".to_string(), 0.5, 1)]
+    );
+    // Four neighbours at distance 1 (unit square cell, common practice): two along x
+    // through Jx, two along y through Jy.
+    let a = doc["neighbours"]["a"].as_array().unwrap();
+    assert_eq!(a.len(), 4);
+    for n in a {
+        assert!((n["distance"].as_f64().unwrap() - 1.0).abs() < 1e-12, "{n}");
+        let cell: Vec<i64> = n["cell"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|x| x.as_i64().unwrap())
+            .collect();
+        let along_x = cell[1] == 0;
+        assert_eq!(n["coupling"], if along_x { "Jx" } else { "Jy" }, "{n}");
+    }
+    let text = rungs()
+        .args(["inspect", "lattices/square_anisotropic.yaml"])
+        .output()
+        .unwrap();
+    let text = String::from_utf8(text.stdout).unwrap();
+    for label in ["Bonds per coupling", "Neighbours", "Jy", "distance"] {
+        assert!(text.contains(label), "table lacks `{label}`:\n{text}");
+    }
+    assert!(!text.contains("WARNING"), "{text}");
+}
+
+#[test]
+fn one_plaquette_shape_on_the_antiferromagnets_two_site_cell_is_flagged() {
+    // The square-lattice antiferromagnet in a √2×√2 cell: one plaquette shape covers
+    // half the plaquettes, and the plaquette Tc comes out 2.7708 instead of Kikuchi's
+    // 2.4257 (Kikuchi 1951, Phys. Rev. 81, 988; from memory to 4 digits, and the value
+    // of `square.yaml`'s plaquette level, which rungs' own tests hold to the same).
+    let one = Path::new("tests/fixtures/square_af_sqrt2_one_plaquette.yaml");
+    let both = Path::new("tests/fixtures/square_af_sqrt2_both_plaquettes.yaml");
+    let doc = inspect_json(one);
+    let warnings = doc["warnings"].as_array().unwrap();
+    assert_eq!(warnings.len(), 1, "{warnings:?}");
+    let w = warnings[0].as_str().unwrap();
+    assert!(
+        w.contains("level `plaquette` is not closed under the lattice's symmetry")
+            && w.contains("[[b, [0, 0]], [a, [1, 0]], [b, [1, 0]], [a, [1, 1]]]"),
+        "{w}"
+    );
+    let table = rungs().arg("inspect").arg(one).output().unwrap();
+    let table = String::from_utf8(table.stdout).unwrap();
+    assert!(table.contains("WARNING: level `plaquette`"), "{table}");
+    assert_eq!(inspect_json(both)["warnings"], serde_json::json!([]));
+
+    let plaquette_tc = |file: &Path| -> f64 {
+        let out = common::ok(&[
+            "tc",
+            file.to_str().unwrap(),
+            "--levels",
+            "plaquette",
+            "--format",
+            "json",
+        ]);
+        let doc: Value = serde_json::from_str(&out).unwrap();
+        doc["levels"][0]["tc"].as_f64().unwrap()
+    };
+    let (t_one, t_both) = (plaquette_tc(one), plaquette_tc(both));
+    assert!((t_both - 2.4257).abs() < 1e-3, "{t_both}");
+    assert!((t_one - 2.7708).abs() < 1e-3, "{t_one}");
+}
+
+/// `inspect --plot`: an SVG with one dot per drawn site, a legend naming every coupling
+/// and every named level, for a 1D, a 2D and a 3D lattice.
+#[test]
+fn plot_draws_sites_bonds_and_level_shapes() {
+    let dir = tempfile::tempdir().unwrap();
+    for (stem, words) in [
+        (
+            "chain",
+            vec!["bond J (J = 1)", "level `triple`", "1 shape of 3 sites"],
+        ),
+        (
+            "layered_magnet",
+            vec![
+                "bond J_in (J = 1)",
+                "bond J_perp (J = 0.1)",
+                "level `plaquette`",
+                "level `box`",
+                "1 shape of 8 sites",
+            ],
+        ),
+        ("kagome", vec!["level `triangles`", "2 shapes of 3 sites"]),
+    ] {
+        let svg_path = dir.path().join(format!("{stem}.svg"));
+        common::ok(&[
+            "inspect",
+            &format!("lattices/{stem}.yaml"),
+            "--plot",
+            svg_path.to_str().unwrap(),
+        ]);
+        let svg = std::fs::read_to_string(&svg_path).unwrap();
+        assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
+        for w in words {
+            assert!(svg.contains(w), "{stem}: figure lacks `{w}`");
+        }
+        assert!(
+            svg.matches("<circle").count() > 8,
+            "{stem}: too few sites drawn"
+        );
+        assert!(
+            svg.contains("<polyline") || svg.contains("<path"),
+            "{stem}: no bonds"
+        );
     }
 }

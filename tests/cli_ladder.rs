@@ -164,6 +164,16 @@ fn square_ladder_against_onsager() {
     );
     // γ = 1 + ψ > 1: the amplitudes grow as the rungs approach Tc*.
     assert!(cam["gamma"].as_f64().unwrap() > 1.0);
+    // γ = 7/4 was first obtained by Barouch, McCoy & Wu (1973), Phys. Rev. Lett. 31, 1409;
+    // the note cites them before the longer paper of 1976.
+    assert!(
+        has_note(
+            &doc,
+            "7/4 (Barouch, McCoy & Wu 1973, Phys. Rev. Lett. 31, 1409"
+        ),
+        "{:?}",
+        notes(&doc)
+    );
 }
 
 /// The file's own cluster rungs without the 4×4 block (pair, plaquette, 3×3): three
@@ -200,40 +210,17 @@ fn square_file_rungs_without_the_big_block() {
 }
 
 #[test]
-fn triangular_ladder_too_short_then_with_a_larger_block() {
-    // The shipped file has pair and triangles only: two cluster rungs, too few for either
-    // extrapolation, which is a note and not an error.
+fn triangular_ladder_extrapolates_from_its_shipped_rungs() {
+    // The shipped file has three cluster rungs (pair, triangles, the 7-site hexagon):
+    // enough for both extrapolations, with no degree of freedom left.
     let doc = ladder("lattices/triangular.yaml", &[]);
     check_deviations(&doc);
-    assert!(doc["extrapolations"].as_array().unwrap().is_empty());
-    assert!(
-        has_note(&doc, "coherent-anomaly extrapolation needs at least 3"),
-        "{:?}",
-        notes(&doc)
-    );
-    assert!(
-        has_note(&doc, "inverse-size extrapolation needs at least 3"),
-        "{:?}",
-        notes(&doc)
-    );
-
-    // The same lattice with the 3×3 block of cells added as a third cluster rung.
-    let text = std::fs::read_to_string(concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/lattices/triangular.yaml"
-    ))
-    .unwrap();
-    let at = text.find("reference:").unwrap();
-    let text = format!(
-        "{}  block3:\n    block: [3, 3]\n{}",
-        &text[..at],
-        &text[at..]
-    );
-    let dir = tempfile::tempdir().unwrap();
-    let path = dir.path().join("triangular_block3.yaml");
-    std::fs::write(&path, text).unwrap();
-    let doc = ladder(path.to_str().unwrap(), &[]);
     assert!((doc["reference"]["tc"].as_f64().unwrap() - TRIANGULAR_TC).abs() < 1e-12);
+    let names: Vec<&str> = levels(&doc)
+        .iter()
+        .map(|l| l["level"].as_str().unwrap())
+        .collect();
+    assert_eq!(names, vec!["site", "pair", "triangles", "hexagon"]);
     let cam = extrapolation(&doc, "coherent-anomaly").unwrap_or_else(|| panic!("{doc}"));
     let tc_star = cam["tc"].as_f64().unwrap();
     assert!(cam["tc_error"].as_f64().unwrap() > 0.0);
@@ -274,10 +261,11 @@ fn simple_cubic_ladder_is_reported() {
 }
 
 #[test]
-fn honeycomb_has_too_few_levels_for_extrapolation() {
-    let doc = ladder("lattices/honeycomb.yaml", &[]);
+fn diamond_has_too_few_levels_for_extrapolation() {
+    // Diamond: `stars` repeats the pair Tc (no loop) and `hexagons` has none (ill-posed),
+    // so one cluster rung is left: no extrapolation, said as a note, not an error.
+    let doc = ladder("lattices/diamond.yaml", &[]);
     check_deviations(&doc);
-    assert_eq!(levels(&doc).len(), 3);
     assert!(doc["extrapolations"].as_array().unwrap().is_empty());
     assert!(
         has_note(&doc, "needs at least 3 cluster levels"),
@@ -285,8 +273,25 @@ fn honeycomb_has_too_few_levels_for_extrapolation() {
         notes(&doc)
     );
     // The table says so too.
-    let table = ok(&["ladder", "lattices/honeycomb.yaml"]);
+    let table = ok(&["ladder", "lattices/diamond.yaml"]);
     assert!(table.contains("none could be made"), "{table}");
+}
+
+#[test]
+fn honeycomb_ladder_extrapolates_toward_houtappel() {
+    // Pair, hexagon, two and three hexagons: the coherent-anomaly Tc* beats the best
+    // rung (three hexagons, +2.6 %) and lies within 1 % of 2/ln(2 + √3) (Houtappel
+    // 1950, Physica 16, 425).
+    let exact = 2.0 / (2.0 + 3f64.sqrt()).ln();
+    let doc = ladder("lattices/honeycomb.yaml", &[]);
+    check_deviations(&doc);
+    let cam = extrapolation(&doc, "coherent-anomaly").unwrap_or_else(|| panic!("{doc}"));
+    let tc_star = cam["tc"].as_f64().unwrap();
+    assert!(
+        (tc_star - exact).abs() < best_single_level(&doc, exact),
+        "{cam}"
+    );
+    assert!((tc_star / exact - 1.0).abs() < 0.01, "{cam}");
 }
 
 #[test]
@@ -493,7 +498,7 @@ fn csv_and_table_shapes() {
 /// `cargo test --release --test cli_ladder -- --ignored`.
 /// The full square ladder with the 4×4 block: the coherent-anomaly Tc* lies within 1 %
 /// of Onsager's 2.269185 (Onsager 1944), and γ moves toward the exact 7/4 (Onsager/Yang;
-/// Wu, McCoy, Tracy & Barouch 1976) when the 4×4 block joins pair, plaquette and 3×3.
+/// Barouch, McCoy & Wu 1973, Phys. Rev. Lett. 31, 1409) when the 4×4 block joins pair, plaquette and 3×3.
 #[test]
 #[ignore]
 fn square_ladder_with_the_4x4_block_converges() {

@@ -88,6 +88,20 @@ fn table_shows_levels_deviation_and_caveats() {
         "{text}"
     );
     assert!(text.contains("approximations, not bounds"), "{text}");
+    // Which levels bound what: the site level's F (Bogoliubov inequality) and, for
+    // ferromagnets, its Tc (Griffiths 1967, Commun. Math. Phys. 6, 121); the pair level's
+    // F for ferromagnets (Ruozzi 2012, NIPS 25, 117) and its Tc (Fisher 1967).
+    for words in [
+        "Bogoliubov",
+        "Griffiths 1967",
+        "Ruozzi 2012",
+        "Tc_pair ≥ Tc_exact",
+    ] {
+        assert!(
+            text.contains(words),
+            "`{words}` missing from the notes: {text}"
+        );
+    }
     assert!(
         text.contains("every wavevector") && text.contains("(0, 0)"),
         "{text}"

@@ -306,6 +306,64 @@ fn shipped_lattices_are_recognised_with_their_reference_tc() {
     }
 }
 
+/// A distorted triangular lattice (couplings 1, 1, 0.5 on its three bond directions) and
+/// a distorted honeycomb lattice (1, 0.5, −0.25), as a user would write them.
+const DISTORTED_TRIANGULAR: &str = "name: tri\ndimension: 2\nvectors: [[1.0, 0.0], [0.5, 0.8]]\n\
+    basis: [{name: a}]\ncouplings: {J: 1.0, Jd: 0.5}\nbonds:\n\
+    - {from: a, to: a, cell: [1, 0], coupling: J}\n\
+    - {from: a, to: a, cell: [0, 1], coupling: J}\n\
+    - {from: a, to: a, cell: [-1, 1], coupling: Jd}\n";
+const DISTORTED_HONEYCOMB: &str = "name: hc\ndimension: 2\nvectors: [[1.7, 0.0], [0.9, 1.5]]\n\
+    basis: [{name: a}, {name: b, position: [0.0, 1.0]}]\ncouplings: {J1: 1.0, J2: 0.5, J3: -0.25}\n\
+    bonds:\n\
+    - {from: a, to: b, cell: [0, 0], coupling: J1}\n\
+    - {from: a, to: b, cell: [0, -1], coupling: J2}\n\
+    - {from: a, to: b, cell: [1, -1], coupling: J3}\n";
+
+/// Root in T of `f(1/T) = 1` for `f` increasing in β, by plain bisection on [0.01, 100].
+fn root_in_temperature(f: impl Fn(f64) -> f64) -> f64 {
+    let (mut lo, mut hi) = (0.01f64, 100.0f64);
+    for _ in 0..200 {
+        let mid = (lo * hi).sqrt();
+        if f(1.0 / mid) > 1.0 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    (lo * hi).sqrt()
+}
+
+#[test]
+fn distorted_triangular_and_honeycomb_lattices_get_houtappels_tc() {
+    // Houtappel (1950), Physica 16, 425: sinh 2K1 sinh 2K2 + sinh 2K2 sinh 2K3 +
+    // sinh 2K3 sinh 2K1 = 1 (triangular), tanh K1 tanh K2 + tanh K2 tanh K3 +
+    // tanh K3 tanh K1 = 1 (honeycomb, |K|), solved here by a bisection of their own.
+    let tri = Lattice::from_yaml_str(DISTORTED_TRIANGULAR, "tri.yaml").unwrap();
+    let form = ClosedForm::recognise(&tri).expect("distorted triangular recognised");
+    let s = |b: f64, j: f64| (2.0 * b * j).sinh();
+    let want = root_in_temperature(|b| s(b, 1.0) * s(b, 1.0) + 2.0 * s(b, 1.0) * s(b, 0.5));
+    let got = form.tc().unwrap();
+    assert!((got - want).abs() < 1e-10 * want, "{got} vs {want}");
+    // Between the square lattice (third coupling 0, Onsager 1944) and the isotropic
+    // triangular lattice (4/ln 3, Houtappel 1950).
+    assert!(TC_SQUARE < got && got < 4.0 / 3f64.ln(), "{got}");
+    assert!(form.source().contains("Houtappel (1950)"));
+
+    let hc = Lattice::from_yaml_str(DISTORTED_HONEYCOMB, "hc.yaml").unwrap();
+    let form = ClosedForm::recognise(&hc).expect("distorted honeycomb recognised");
+    let t = |b: f64, j: f64| (b * j).tanh();
+    let want = root_in_temperature(|b| {
+        t(b, 1.0) * t(b, 0.5) + t(b, 0.5) * t(b, 0.25) + t(b, 0.25) * t(b, 1.0)
+    });
+    let got = form.tc().unwrap();
+    assert!((got - want).abs() < 1e-10 * want, "{got} vs {want}");
+    assert!(
+        got < 2.0 / (2.0 + 3f64.sqrt()).ln(),
+        "weaker bonds, lower Tc: {got}"
+    );
+}
+
 #[test]
 fn closed_forms_are_thermodynamically_consistent() {
     // u = ∂(βf)/∂β and c = ∂u/∂T by central differences (thermodynamic identities).

@@ -16,12 +16,36 @@ const SHIPPED: &[(&str, usize, usize, bool, &[&str])] = &[
     ("chain", 1, 2, true, &["triple"]),
     ("square", 1, 4, true, &["plaquette", "block3", "block4"]),
     ("square_anisotropic", 1, 4, true, &["plaquette", "block3"]),
-    ("triangular", 1, 6, false, &["triangles"]),
-    ("honeycomb", 2, 3, true, &["hexagon"]),
-    ("kagome", 3, 4, false, &["triangles"]),
+    ("triangular", 1, 6, false, &["triangles", "hexagon"]),
+    (
+        "honeycomb",
+        2,
+        3,
+        true,
+        &["hexagon", "hexagons2", "hexagons3"],
+    ),
+    (
+        "kagome",
+        3,
+        4,
+        false,
+        &["triangles", "hexagon", "hexagon_tips"],
+    ),
     ("simple_cubic", 1, 6, true, &["plaquettes", "cube"]),
-    ("bcc", 1, 8, true, &["tetrahedron"]),
-    ("fcc", 1, 12, false, &["tetrahedra"]),
+    (
+        "bcc",
+        1,
+        8,
+        true,
+        &["tetrahedron", "octahedra", "cube_octahedra"],
+    ),
+    (
+        "fcc",
+        1,
+        12,
+        false,
+        &["tetrahedra", "tetrahedra_octahedron"],
+    ),
     ("diamond", 2, 4, true, &["stars", "hexagons"]),
     ("layered_magnet", 1, 6, true, &["plaquette", "box"]),
 ];
@@ -265,6 +289,13 @@ fn two_dimensional_multi_site_levels() {
         summary(&level("kagome", "triangles")),
         sorted([rep(3, 1, -1), rep(2, 3, 1)].concat())
     );
+    // Kagome hexagon ring with both triangles as clusters: ring +1, each triangle +1;
+    // each bond lies in one ring and one triangle → 1 − 2 = −1; each site in 2 rings,
+    // 2 triangles and 4 bonds → 1 − (2 + 2 − 4) = +1 (by hand).
+    assert_eq!(
+        summary(&level("kagome", "hexagon")),
+        sorted([rep(3, 1, 1), rep(6, 2, -1), rep(2, 3, 1), rep(1, 6, 1)].concat())
+    );
     // Honeycomb hexagon: +1; each bond in 2 hexagons → −1; each site in 3 hexagons and
     // 3 bonds → +1 (by hand).
     let want = sorted([rep(2, 1, 1), rep(3, 2, -1), rep(1, 6, 1)].concat());
@@ -282,6 +313,21 @@ fn loop_free_levels() {
         summary(&level("diamond", "stars")),
         sorted([rep(4, 2, -1), rep(2, 5, 1)].concat())
     );
+}
+
+#[test]
+fn every_shipped_level_is_closed_under_the_lattice_symmetry_and_covers_every_bond() {
+    // The new levels of triangular, honeycomb, kagome, bcc and fcc were written for the
+    // full point group; `check::lattice_warnings` would name a missing orientation. Only
+    // the layered demo leaves a bond (J_perp) to bare pairs, on purpose.
+    for &(stem, ..) in SHIPPED {
+        let warnings = rungs::lattice::check::lattice_warnings(&load(stem)).unwrap();
+        if stem == "layered_magnet" {
+            assert_eq!(warnings.len(), 1, "{warnings:?}");
+        } else {
+            assert!(warnings.is_empty(), "{stem}: {warnings:?}");
+        }
+    }
 }
 
 #[test]
@@ -336,12 +382,12 @@ fn exact_reference_temperatures_match_their_closed_forms() {
             2.0 / (2.0 + 3f64.sqrt()).ln(),
             "Houtappel (1950)",
         ),
-        // Kanô & Naya (1953), Prog. Theor. Phys. 10, 158 (volume and page from memory):
-        // Tc = 4J/ln(3 + 2√3).
+        // Syozi (1951), Prog. Theor. Phys. 6, 306, who first obtained it (volume and page
+        // from memory): Tc = 4J/ln(3 + 2√3).
         (
             "kagome",
             4.0 / (3.0 + 2.0 * 3f64.sqrt()).ln(),
-            "Kanô & Naya (1953)",
+            "Syozi (1951)",
         ),
     ];
     for (stem, tc, author) in cases {
@@ -430,4 +476,35 @@ fn reference_tc_lies_below_the_bethe_and_mean_field_values() {
             r.tc
         );
     }
+}
+
+#[test]
+fn diamond_hexagons_is_ill_posed_and_says_so() {
+    // The chair-hexagon level on the diamond lattice has a paramagnetic solution at
+    // T = 2.95 but none at the pair-level Tc 2/ln 2 = 2.885 (Bethe 1935, z = 4): its
+    // paramagnetic branch ends above the pair Tc, so the level can give no Tc.
+    use rungs::solve::{solve_equilibrium, state::magnetization};
+    let lattice = load("diamond");
+    let hexagons = level("diamond", "hexagons");
+    let above = solve_equilibrium(&hexagons, 2.95, 0.0, None).expect("paramagnet at T = 2.95");
+    assert!(
+        magnetization(&hexagons, &above.solution.x).abs() < 1e-9,
+        "paramagnetic at 2.95"
+    );
+    assert!(
+        solve_equilibrium(&hexagons, 2.0 / 2f64.ln(), 0.0, None).is_err(),
+        "no paramagnetic solution is expected at the pair Tc"
+    );
+    let description = lattice.description().unwrap();
+    assert!(
+        description.contains("ill-posed") && description.contains("no Tc"),
+        "diamond.yaml should say that `hexagons` is ill-posed: {description}"
+    );
+    let docs =
+        std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/lattices.md"))
+            .unwrap();
+    assert!(
+        docs.contains("`hexagons` (ill-posed, no Tc)"),
+        "docs/lattices.md table"
+    );
 }

@@ -44,6 +44,22 @@ fn validation_table_lists_every_shipped_lattice() {
             "docs/validation.md lists {file}, which no longer exists: regenerate it"
         );
     }
+    // Every level of every shipped file has its row (a level added without regenerating
+    // the table is caught here).
+    for stem in &stems {
+        let path = root.join("lattices").join(format!("{stem}.yaml"));
+        let lattice = rungs::lattice::Lattice::from_file(&path).unwrap();
+        let section = doc
+            .split("\n### ")
+            .find(|s| s.contains(&format!("(`lattices/{stem}.yaml`)")))
+            .unwrap_or_else(|| panic!("docs/validation.md has no section for {stem}"));
+        for level in rungs::lattice::Level::names(&lattice) {
+            assert!(
+                section.contains(&format!("\n| {level} |")),
+                "docs/validation.md lacks level `{level}` of {stem}: regenerate it"
+            );
+        }
+    }
     // Onsager's exact Tc on the square lattice (Onsager 1944, Phys. Rev. 65, 117) is the
     // reference of its row.
     assert!(

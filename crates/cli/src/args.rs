@@ -72,6 +72,10 @@ pub struct InspectArgs {
     /// The lattice file, `--format` and `--output`.
     #[command(flatten)]
     pub common: CommonArgs,
+    /// Also draw a patch of the lattice into FILE (SVG or PNG, by its extension): sites,
+    /// bonds coloured by coupling, and one translate of each level's cluster shapes.
+    #[arg(long, value_name = "FILE", value_parser = parse_plot_path)]
+    pub plot: Option<PathBuf>,
 }
 
 /// `rungs tc LATTICE [--levels a,b] [--field h] [--supercell 2x2]`.

@@ -18,6 +18,7 @@
 //! assert!(lattice.is_bipartite());
 //! ```
 
+pub mod check;
 pub mod cluster;
 pub mod error;
 pub mod level;
@@ -32,5 +33,5 @@ pub mod torus;
 pub use cluster::Cluster;
 pub use error::LatticeError;
 pub use level::{BondTerm, Level, Region, MAX_CLUSTER_SITES};
-pub use model::{Bond, Cell, Lattice, LevelSpec, Reference, Site};
+pub use model::{Bond, Cell, Lattice, LevelSpec, Neighbour, Reference, Site};
 pub use torus::Torus;

@@ -43,6 +43,21 @@ pub struct Bond {
     pub j: f64,
 }
 
+/// One neighbour of a basis site (see [`Lattice::neighbour_list`]).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Neighbour {
+    /// Basis index of the neighbour.
+    pub site: usize,
+    /// Its cell offset (the site itself is in cell 0).
+    pub cell: Cell,
+    /// The bond's coupling name (or literal value as written).
+    pub coupling: String,
+    /// The bond's exchange constant J.
+    pub j: f64,
+    /// Cartesian distance `|Σ_k cell_k v_k + r_site − r_self|`.
+    pub distance: f64,
+}
+
 /// A named Kikuchi level from the file: one or more cluster shapes.
 #[derive(Debug, Clone, PartialEq)]
 pub struct LevelSpec {
@@ -197,15 +212,59 @@ impl Lattice {
     /// Every neighbour of basis site `i` in cell 0 as (basis index, cell, J), both bond
     /// directions included.
     pub fn neighbours(&self, i: usize) -> Vec<(usize, Cell, f64)> {
+        self.neighbour_list(i)
+            .into_iter()
+            .map(|n| (n.site, n.cell, n.j))
+            .collect()
+    }
+
+    /// Every neighbour of basis site `i` with its bond's coupling and Cartesian distance
+    /// `|Σ_k n_k v_k + r_b − r_i|`, in bond order (both directions of each bond).
+    pub fn neighbour_list(&self, i: usize) -> Vec<Neighbour> {
         let mut out = Vec::new();
+        let mut push = |site: usize, cell: Cell, b: &Bond| {
+            let mut d = [0.0f64; 3];
+            for (k, x) in d.iter_mut().enumerate() {
+                *x = self.basis[site].position[k] - self.basis[i].position[k];
+                for (n, v) in cell.iter().zip(&self.vectors) {
+                    *x += f64::from(*n) * v[k];
+                }
+            }
+            out.push(Neighbour {
+                site,
+                cell,
+                coupling: b.coupling.clone(),
+                j: b.j,
+                distance: d.iter().map(|x| x * x).sum::<f64>().sqrt(),
+            });
+        };
         for b in &self.bonds {
             if b.from == i {
-                out.push((b.to, b.cell, b.j));
+                push(b.to, b.cell, b);
             }
             if b.to == i {
-                out.push((b.from, [-b.cell[0], -b.cell[1], -b.cell[2]], b.j));
+                push(b.from, [-b.cell[0], -b.cell[1], -b.cell[2]], b);
             }
         }
+        out
+    }
+
+    /// Bonds per cell of each coupling: `(coupling name or literal, J, count)`, named
+    /// couplings in file order (those no bond uses omitted), then literal values in bond
+    /// order.
+    pub fn bonds_per_coupling(&self) -> Vec<(String, f64, usize)> {
+        let mut out: Vec<(String, f64, usize)> = self
+            .couplings
+            .iter()
+            .map(|(name, j)| (name.clone(), *j, 0))
+            .collect();
+        for b in &self.bonds {
+            match out.iter_mut().find(|(name, ..)| *name == b.coupling) {
+                Some(entry) => entry.2 += 1,
+                None => out.push((b.coupling.clone(), b.j, 1)),
+            }
+        }
+        out.retain(|e| e.2 > 0);
         out
     }
 
@@ -383,5 +442,39 @@ impl Lattice {
             levels,
             reference: self.reference.clone(),
         })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn neighbours_carry_coupling_and_distance_and_bonds_are_counted_per_coupling() {
+        // Honeycomb with nearest-neighbour distance 1 (common practice), one bond
+        // direction weaker, and a literal coupling on another.
+        let text = "name: hc\ndimension: 2\nvectors: [[1.7320508075688772, 0.0], [0.8660254037844386, 1.5]]\n\
+                    basis: [{name: a}, {name: b, position: [0.0, 1.0]}]\n\
+                    couplings: {J: 1.0, Jw: 0.5, unused: 2.0}\nbonds:\n\
+                    \x20 - {from: a, to: b, cell: [0, 0], coupling: J}\n\
+                    \x20 - {from: a, to: b, cell: [0, -1], coupling: Jw}\n\
+                    \x20 - {from: a, to: b, cell: [1, -1], coupling: 0.25}\n";
+        let l = Lattice::from_yaml_str(text, "hc.yaml").unwrap();
+        let nb = l.neighbour_list(1);
+        assert_eq!(nb.len(), 3);
+        assert!(nb
+            .iter()
+            .all(|n| n.site == 0 && (n.distance - 1.0).abs() < 1e-12));
+        assert_eq!(nb[1].cell, [0, 1, 0]);
+        assert_eq!((nb[1].coupling.as_str(), nb[1].j), ("Jw", 0.5));
+        assert_eq!(
+            l.bonds_per_coupling(),
+            vec![
+                ("J".to_string(), 1.0, 1),
+                ("Jw".to_string(), 0.5, 1),
+                ("0.25".to_string(), 0.25, 1)
+            ]
+        );
+        assert_eq!(l.neighbours(0).len(), 3);
     }
 }

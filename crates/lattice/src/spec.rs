@@ -12,6 +12,7 @@
 //! The first broken rule is returned as a [`LatticeError`] whose message names the file,
 //! the line and column, the key path, the offending value and the fix.
 
+mod brackets;
 mod build;
 mod levels;
 mod read;

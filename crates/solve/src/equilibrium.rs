@@ -5,7 +5,9 @@
 //! (Cholesky succeeds), otherwise raised until it is; the step is halved until the new
 //! point is feasible and satisfies Armijo's condition `F(x + αd) ≤ F(x) + 10⁻⁴ α ∇F·d`.
 //! A failed line search raises μ, turning the step toward steepest descent, so every
-//! accepted step lowers F (the same guarantee as Kikuchi's natural iteration, 1974).
+//! accepted step lowers F, for any level (Kikuchi's natural iteration, 1974, lowers F at
+//! every step only when the level's entropy coefficients meet a sufficient condition:
+//! Pretti 2005, J. Stat. Phys., doi:10.1007/s10955-005-4426-x).
 
 use nalgebra::{DMatrix, DVector};
 
@@ -51,6 +53,9 @@ const ROUNDING_FLOOR: f64 = 1e-7;
 /// Largest gradient accepted as converged when three Newton steps in a row fail to
 /// shrink it (the rounding floor of big clusters).
 const STAGNATION_FLOOR: f64 = 1e-5;
+
+/// The same for a state written as offsets from a reference (Walsh basis).
+const PRECISE_FLOOR: f64 = 1e-10;
 
 /// A gradient beyond this is never taken as converged, whatever the step.
 const DECREMENT_GRADIENT_LIMIT: f64 = 1e3;
@@ -155,7 +160,15 @@ pub fn minimise_with(
         } else {
             stalled += 1;
         }
-        if stalled >= 3 && gn < STAGNATION_FLOOR {
+        // The rounding floors below are for plain correlation functions; states written
+        // as offsets from a reference, or as flip probabilities, carry small quantities
+        // whose relative precision those absolute floors would give away.
+        let floor = if f.is_precise() && !flip {
+            PRECISE_FLOOR
+        } else {
+            STAGNATION_FLOOR
+        };
+        if stalled >= 3 && gn < floor {
             return Ok(Solution {
                 x,
                 evaluation: ev,
@@ -192,7 +205,11 @@ pub fn minimise_with(
             d.iter_mut().for_each(|v| *v = -*v);
             // At the rounding floor of the gradient (big clusters at low T: ln p of tiny
             // probabilities) Newton asks for steps below the resolution of ξ: converged.
-            if mu == 0.0 && d.iter().all(|v| v.abs() < 1e-13) && gn < ROUNDING_FLOOR {
+            if mu == 0.0
+                && !f.is_precise()
+                && d.iter().all(|v| v.abs() < 1e-13)
+                && gn < ROUNDING_FLOOR
+            {
                 return Ok(Solution {
                     x,
                     evaluation: ev,
@@ -235,7 +252,7 @@ pub fn minimise_with(
                     let armijo = evn.merit <= ev.merit + 1e-4 * alpha * slope;
                     // Near convergence F changes by less than its rounding; then accept a
                     // step that does not raise F beyond rounding and shrinks the gradient.
-                    let noise = 1e-14 * ev.merit.abs().max(1e-300);
+                    let noise = ev.rounding.max(evn.rounding);
                     let flat =
                         evn.merit <= ev.merit + noise && block_norm(&evn.gradient, block) < gn;
                     if armijo || flat {

@@ -38,6 +38,9 @@ use crate::subset::{
     mobius_subset, mobius_superset, parity_sign, walsh, zeta_subset, zeta_superset,
 };
 
+/// Regions up to this many sites get their precise Hessian in the Gram form.
+pub const GRAM_SITES: usize = 6;
+
 /// Most correlation variables a level may have for the dense engine (a 6000² Hessian is
 /// 288 MB; the square 3×3 block has 400 variables, the 4×4 block 57,856).
 pub const MAX_DENSE_VARIABLES: usize = 6000;
@@ -156,6 +159,9 @@ pub struct Evaluation {
     /// constant, so that a line search can compare states whose free energies differ by
     /// less than 10⁻¹⁶ of F (low temperature).
     pub merit: f64,
+    /// The rounding scale of `merit`: 10⁻¹⁵ times the sum of the magnitudes of its
+    /// terms (`T |a_γ| |p ln p|` and the energy's), below which two merits are equal.
+    pub rounding: f64,
 }
 
 /// How a region's Hessian entry is read from its kernel array.
@@ -518,20 +524,36 @@ impl<'a> Functional<'a> {
     /// F, E, S and ∇F at `x`, or `None` where some cluster probability is not positive.
     pub fn evaluate(&self, x: &[f64]) -> Option<Evaluation> {
         let mut gradient = self.energy_gradient(x);
-        let entropy = self.entropy_and_gradient(x, &mut gradient, -self.t)?;
+        let mut magnitude = 0.0;
+        let entropy = self.entropy_and_gradient(x, &mut gradient, -self.t, &mut magnitude)?;
         let (constant, variable) = self.energy_parts(x);
         let merit = variable - self.t * entropy;
+        let energy_terms: f64 = {
+            let e = &self.setup.energy;
+            x.iter()
+                .enumerate()
+                .map(|(k, xk)| ((e.lin_bonds[k] + self.h * e.lin_field[k]) * xk).abs())
+                .sum()
+        };
         Some(Evaluation {
             free_energy: constant + merit,
             energy: constant + variable,
             entropy,
             gradient,
             merit,
+            rounding: 1e-15 * (self.t * magnitude + energy_terms) + 1e-300,
         })
     }
 
-    /// Entropy per cell; adds `scale · ∂S/∂x` into `g`. `None` if infeasible.
-    fn entropy_and_gradient(&self, x: &[f64], g: &mut [f64], scale: f64) -> Option<f64> {
+    /// Entropy per cell; adds `scale · ∂S/∂x` into `g` and `Σ_γ |a_γ| Σ_σ |p ln p|` into
+    /// `magnitude`. `None` if infeasible.
+    fn entropy_and_gradient(
+        &self,
+        x: &[f64],
+        g: &mut [f64],
+        scale: f64,
+        magnitude: &mut f64,
+    ) -> Option<f64> {
         let mut p = Vec::new();
         let mut s_total = 0.0;
         for (ri, r) in self.setup.regions.iter().enumerate() {
@@ -540,8 +562,13 @@ impl<'a> Functional<'a> {
                 return None;
             }
             let mut s = 0.0;
-            ln_largest(&mut p, |q, l| s -= q * l);
+            let mut mag = 0.0;
+            ln_largest(&mut p, |q, l| {
+                s -= q * l;
+                mag += (q * l).abs();
+            });
             s_total += r.coefficient * s;
+            *magnitude += r.coefficient.abs() * mag;
             // p now holds ln p; ∂S/∂x_c = −(Tᵀ ln p)[c].
             let f = scale * r.coefficient;
             if self.setup.precise {
@@ -600,7 +627,7 @@ impl<'a> Functional<'a> {
     /// `∇S` (entropy per cell) at `x`.
     pub fn entropy_gradient(&self, x: &[f64]) -> Option<Vec<f64>> {
         let mut g = vec![0.0; self.len()];
-        self.entropy_and_gradient(x, &mut g, 1.0)?;
+        self.entropy_and_gradient(x, &mut g, 1.0, &mut 0.0)?;
         Some(g)
     }
 
@@ -688,6 +715,111 @@ impl<'a> Functional<'a> {
         pos: &[usize],
     ) -> Option<DMatrix<f64>> {
         self.hessian_block_with(x, vars, pos, true)
+    }
+
+    /// The Hessian block with every entry in double-double (column-major `m × m`), for
+    /// solves that need more than the entries' double precision (see
+    /// [`crate::dd::inverse_form`]).
+    ///
+    /// Regions of up to [`GRAM_SITES`] sites are summed in the Gram form
+    /// `H = Σ_σ u(σ) u(σ)ᵀ / p(σ)`, `u_c(σ) = Σ_{k: var(k) = c} ∂p(σ)/∂x_k`: the masks of a
+    /// variable are combined state by state before the division by p, so that a rare
+    /// state that does not move a variable (the chain's `+−` bond state for the
+    /// magnetisation) contributes an exact zero instead of a cancellation of 1/p.
+    pub fn hessian_block_dd(&self, x: &[f64], vars: &[usize], pos: &[usize]) -> Option<Vec<Dd>> {
+        let m = vars.len();
+        let kernels = self.region_kernels(x, true)?;
+        let mut acc = vec![Dd::ZERO; m * m];
+        for (ri, (k, r)) in kernels.iter().zip(&self.setup.regions).enumerate() {
+            if k.n <= GRAM_SITES {
+                self.add_gram(r, ri, x, pos, m, &mut acc)?;
+                continue;
+            }
+            let size = 1usize << k.n;
+            let rows: Vec<(usize, usize)> = (1..size)
+                .filter_map(|c| {
+                    let row = pos[k.vars[c] as usize];
+                    (row != usize::MAX).then_some((c, row))
+                })
+                .collect();
+            for &(c, rc) in &rows {
+                for &(d, rd) in &rows {
+                    acc[rc + m * rd] += k.entry_dd(c, d);
+                }
+            }
+        }
+        for &(a, b, c) in self.quadratic_terms() {
+            let (pa, pb) = (pos[a], pos[b]);
+            if pa != usize::MAX && pb != usize::MAX {
+                acc[pa + m * pb] = acc[pa + m * pb].add_f64(c);
+                acc[pb + m * pa] = acc[pb + m * pa].add_f64(c);
+            }
+        }
+        Some(acc)
+    }
+
+    /// Add region `r`'s Hessian in the Gram form (see [`Functional::hessian_block_dd`]).
+    fn add_gram(
+        &self,
+        r: &RegionTerm,
+        ri: usize,
+        x: &[f64],
+        pos: &[usize],
+        m: usize,
+        acc: &mut [Dd],
+    ) -> Option<()> {
+        let p = self.probabilities_dd(r, ri, x)?;
+        let size = 1usize << r.n;
+        // Rows of the block this region touches, and for each the masks of its variable.
+        let mut rows: Vec<(usize, Vec<usize>)> = Vec::new();
+        for mask in 1..size {
+            let row = pos[r.vars[mask] as usize];
+            if row == usize::MAX {
+                continue;
+            }
+            match rows.iter_mut().find(|(rw, _)| *rw == row) {
+                Some((_, masks)) => masks.push(mask),
+                None => rows.push((row, vec![mask])),
+            }
+        }
+        // ∂p(σ)/∂x_k: Walsh 2^-n χ_k(σ) (σ in spin labels); flip (−1)^{|k|−|A|}[A ⊆ k].
+        let (norm, scale) = match self.setup.basis {
+            Basis::Walsh => (1.0 / size as f64, self.t * r.coefficient),
+            Basis::Flip { .. } => (1.0, self.t * r.coefficient),
+        };
+        let mut u = vec![0.0; rows.len()];
+        for (state, ps) in p.iter().enumerate() {
+            for (slot, (_, masks)) in u.iter_mut().zip(&rows) {
+                *slot = masks
+                    .iter()
+                    .map(|&k| match self.setup.basis {
+                        Basis::Walsh => norm * crate::subset::parity_sign(k & state),
+                        Basis::Flip { .. } => {
+                            if state & !k == 0 {
+                                crate::subset::parity_sign(k ^ state)
+                            } else {
+                                0.0
+                            }
+                        }
+                    })
+                    .sum();
+            }
+            if u.iter().all(|&v| v == 0.0) {
+                continue;
+            }
+            let w = ps.recip().mul_f64(scale);
+            for (i, (ri_, _)) in rows.iter().enumerate() {
+                if u[i] == 0.0 {
+                    continue;
+                }
+                for (j, (rj, _)) in rows.iter().enumerate() {
+                    if u[j] != 0.0 {
+                        acc[*ri_ + m * rj] += w.mul_f64(u[i] * u[j]);
+                    }
+                }
+            }
+        }
+        Some(())
     }
 
     fn hessian_block_with(

@@ -31,6 +31,9 @@ use crate::thermo::{observables_at, Observables};
 /// Order parameters below this are zero: the branch has reached the disordered state.
 pub const ORDER_EPSILON: f64 = 1e-7;
 
+/// Rounding scale of the scaled Hessian's eigenvalues (entries O(1)).
+const STABILITY_NOISE: f64 = 1e-12;
+
 /// Which branch a point is on.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Branch {
@@ -292,8 +295,11 @@ impl<'c> PhaseFollower<'c> {
         let cold = self.last.is_none();
         let dis = match self.disordered_state(t) {
             Ok(d) => d,
-            // Deep in an ordered phase the disordered state may not be reachable; the
-            // ordered phase is then the answer if it exists.
+            // Deep in an ordered phase (below the level's Tc) the disordered state may
+            // not be reachable; the ordered phase is then the answer if it exists.
+            // Without a Tc below t an ordered state could not be checked against the
+            // disordered one, and is not reported.
+            Err(e) if !self.tc_hint.is_some_and(|tc| t < tc) => return Err(e),
             Err(e) => {
                 return match self.start_ordered(t, None)? {
                     Some((signs, x, p)) => {
@@ -351,20 +357,28 @@ impl<'c> PhaseFollower<'c> {
     fn disordered_state(&mut self, t: f64) -> Result<DisorderedState<'c>, SolveError> {
         let (f, x) = self.disordered.solve(t)?;
         let sector = self.disordered.sector();
-        let qh =
-            QHessian::scaled(&f, self.primitive_lattice, &x, sector, false).ok_or_else(|| {
-                SolveError::InfeasibleStart {
-                    level: self.cell.level.name.clone(),
-                    t,
-                    h: self.field,
-                }
+        let qh = QHessian::scaled(&f, self.primitive_lattice, &x, sector, f.is_precise())
+            .ok_or_else(|| SolveError::InfeasibleStart {
+                level: self.cell.level.name.clone(),
+                t,
+                h: self.field,
             })?;
-        let stable = self
+        // The smallest scaled eigenvalue over the cell's wavevectors decides; within its
+        // rounding the sign says nothing, and the disordered state stands unless an
+        // ordered state is clearly lower in F.
+        let lowest = self
             .cell
             .wavevectors
             .iter()
-            .all(|q| qh.is_positive_definite(q));
+            .map(|q| qh.lowest_value(q))
+            .fold(f64::INFINITY, f64::min);
+        let stable = !(lowest < -STABILITY_NOISE);
         let mut notes = Vec::new();
+        if lowest.abs() <= STABILITY_NOISE {
+            notes.push(format!(
+                "the stability of the disordered state is below double-precision resolution here (smallest scaled Hessian eigenvalue {lowest:.1e}): it is taken as stable unless an ordered state has a clearly lower free energy"
+            ));
+        }
         if let Some(o) = &self.cell.ordering {
             let d = self.primitive_lattice.dimension();
             if !fits(o, self.cell.n, d) && !qh.is_positive_definite(&o.wavevector) {

@@ -25,6 +25,7 @@ use nalgebra::{Complex, DMatrix, DVector};
 use rungs_lattice::symmetry::SiteMap;
 use rungs_lattice::{Cell, Cluster, Lattice, Level};
 
+use crate::dd::Dd;
 use crate::functional::{Block, Functional, RegionKernel};
 use crate::linalg;
 
@@ -184,8 +185,13 @@ impl<'f> QHessian<'f> {
         h
     }
 
-    /// `H(q)` for a wavevector whose phases are all real (see [`is_real`]).
+    /// `H(q)` for a wavevector whose phases are all real (see [`is_real`]); summed in
+    /// double-double when the kernels are (a paramagnet at low temperature, whose soft
+    /// entries are differences of entries 10⁹ times larger).
     fn real_matrix(&self, q: &Wavevector) -> DMatrix<f64> {
+        if self.kernels.iter().any(|k| k.kernel_lo.is_some()) {
+            return self.real_matrix_dd(q);
+        }
         let m = self.block.vars.len();
         let mut h = DMatrix::<f64>::zeros(m, m);
         let mut rows = Vec::new();
@@ -212,6 +218,35 @@ impl<'f> QHessian<'f> {
             }
         }
         h
+    }
+
+    fn real_matrix_dd(&self, q: &Wavevector) -> DMatrix<f64> {
+        let m = self.block.vars.len();
+        let mut acc = vec![Dd::ZERO; m * m];
+        let mut rows = Vec::new();
+        for (k, offs) in self.kernels.iter().zip(&self.offsets) {
+            rows.clear();
+            for (mask, t) in offs.iter().enumerate().skip(1) {
+                let row = self.block.pos[k.vars[mask] as usize];
+                if row != usize::MAX {
+                    rows.push((mask, row, phase(q, t).re.signum() * self.row_scale[row]));
+                }
+            }
+            for &(c, rc, pc) in &rows {
+                for &(d, rd, pd) in &rows {
+                    acc[rc + m * rd] += k.entry_dd(c, d).mul_f64(pc * pd);
+                }
+            }
+        }
+        for &(a, b, c, cell) in &self.quad {
+            let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
+            if pa != usize::MAX && pb != usize::MAX {
+                let ph = phase(q, &cell).re.signum() * c * self.row_scale[pa] * self.row_scale[pb];
+                acc[pa + m * pb] = acc[pa + m * pb].add_f64(ph);
+                acc[pb + m * pa] = acc[pb + m * pa].add_f64(ph);
+            }
+        }
+        DMatrix::from_fn(m, m, |i, j| acc[i + m * j].to_f64())
     }
 
     /// The smallest eigenvalue of `H(q)` and its eigenvector.

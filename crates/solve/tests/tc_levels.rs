@@ -95,7 +95,7 @@ fn square_ladder_lies_between_exact_and_bethe_and_falls() {
 #[test]
 fn cluster_levels_between_exact_and_bethe_on_2d_lattices() {
     // Exact Tc: triangular 4/ln 3 and honeycomb 2/ln(2+√3) (Houtappel 1950, Physica 16,
-    // 425); kagome 4/ln(3+2√3) (Kanô & Naya 1953, Prog. Theor. Phys. 10, 158).
+    // 425); kagome 4/ln(3+2√3) (Syozi 1951, Prog. Theor. Phys. 6, 306).
     // Bethe: 2/ln(z/(z−2)) (Bethe 1935).
     let cases = [
         ("triangular", "triangles", 4.0 / 3f64.ln(), 6.0),

@@ -7,19 +7,49 @@
 //! `Σ_orbits coefficient · S_orbit`. Regions with coefficient 0 do not enter the
 //! entropy and are not listed. The sum rule
 //! `Σ per_cell · coefficient · sites = sites per cell` is checked for each level.
+//!
+//! It also lists the bonds per coupling and every site's neighbours (what the file's
+//! bond list really says), and the warnings of [`rungs_lattice::check`]: levels whose
+//! clusters leave bonds as bare pairs or are not closed under the lattice's symmetry.
+//! With `--plot FILE.svg` it draws a patch of the lattice ([`crate::plot::inspect`]).
 
+mod report;
+
+use rungs_lattice::check::level_warnings;
+use rungs_lattice::symmetry::point_group;
 use rungs_lattice::{Lattice, Level};
-use serde_json::{json, Value};
 
 use crate::args::InspectArgs;
 use crate::error::CliError;
-use crate::output::{num, Block, Grid, Output, Report, TextDoc};
+use crate::output::Output;
 
 /// Run `rungs inspect`.
 pub fn run(args: &InspectArgs, out: &mut Output) -> Result<(), CliError> {
     let lattice = super::load_lattice(&args.common.lattice)?;
-    let report = InspectReport::build(&lattice)?;
+    let levels = Level::names(&lattice)
+        .iter()
+        .map(|name| Level::build(&lattice, name))
+        .collect::<Result<Vec<_>, _>>()?;
+    let report = InspectReport::new(&lattice, &levels);
+    if let Some(path) = &args.plot {
+        crate::plot::inspect::write(path, &lattice, &levels)?;
+    }
     out.emit(&report)
+}
+
+/// One neighbour of a basis site, as shown.
+#[derive(Debug, Clone, PartialEq)]
+pub struct NeighbourRow {
+    /// The neighbour's basis site name.
+    pub site: String,
+    /// Its cell offset (as many components as the lattice has dimensions).
+    pub cell: Vec<i32>,
+    /// The bond's coupling name (or literal value).
+    pub coupling: String,
+    /// The bond's J.
+    pub j: f64,
+    /// Cartesian distance.
+    pub distance: f64,
 }
 
 /// Regions of one level sharing (sites, coefficient).
@@ -62,33 +92,57 @@ pub struct InspectReport {
     coordination: Vec<(String, usize)>,
     bipartite: bool,
     reference: Option<(f64, String)>,
+    /// (coupling, J, bonds per cell), see [`Lattice::bonds_per_coupling`].
+    bonds_per_coupling: Vec<(String, f64, usize)>,
+    /// (basis site name, its neighbours), in basis order.
+    neighbours: Vec<(String, Vec<NeighbourRow>)>,
     /// One entry per level, in [`Level::names`] order.
     pub levels: Vec<LevelSummary>,
+    /// Sentences of [`rungs_lattice::check::level_warnings`], every level in order.
+    pub warnings: Vec<String>,
 }
 
 impl InspectReport {
-    /// Describe `lattice` and build each of its levels.
-    pub fn build(lattice: &Lattice) -> Result<InspectReport, CliError> {
-        let mut levels = Vec::new();
-        for name in Level::names(lattice) {
-            levels.push(summarize(&Level::build(lattice, &name)?));
-        }
-        Ok(InspectReport {
+    /// Describe `lattice` and its built `levels` (in [`Level::names`] order).
+    pub fn new(lattice: &Lattice, levels: &[Level]) -> InspectReport {
+        let ops = point_group(lattice);
+        let d = lattice.dimension();
+        let names = |i: usize| lattice.basis()[i].name.clone();
+        InspectReport {
             name: lattice.name().to_string(),
             description: lattice.description().map(str::to_string),
-            dimension: lattice.dimension(),
+            dimension: d,
             sites_per_cell: lattice.sites_per_cell(),
             bonds_per_cell: lattice.bonds().len(),
-            coordination: lattice
-                .basis()
-                .iter()
-                .map(|s| s.name.clone())
+            coordination: (0..lattice.sites_per_cell())
+                .map(names)
                 .zip(lattice.coordination())
                 .collect(),
             bipartite: lattice.is_bipartite(),
             reference: lattice.reference().map(|r| (r.tc, r.source.clone())),
-            levels,
-        })
+            bonds_per_coupling: lattice.bonds_per_coupling(),
+            neighbours: (0..lattice.sites_per_cell())
+                .map(|i| {
+                    let rows = lattice
+                        .neighbour_list(i)
+                        .into_iter()
+                        .map(|n| NeighbourRow {
+                            site: names(n.site),
+                            cell: n.cell[..d].to_vec(),
+                            coupling: n.coupling,
+                            j: n.j,
+                            distance: n.distance,
+                        })
+                        .collect();
+                    (names(i), rows)
+                })
+                .collect(),
+            levels: levels.iter().map(summarize).collect(),
+            warnings: levels
+                .iter()
+                .flat_map(|l| level_warnings(lattice, l, &ops))
+                .collect(),
+        }
     }
 }
 
@@ -124,146 +178,5 @@ pub fn summarize(level: &Level) -> LevelSummary {
         variables: level.variables.len(),
         regions: groups,
         sum_rule,
-    }
-}
-
-impl Report for InspectReport {
-    fn json(&self) -> Result<Value, serde_json::Error> {
-        let coordination: serde_json::Map<String, Value> = self
-            .coordination
-            .iter()
-            .map(|(n, z)| (n.clone(), json!(z)))
-            .collect();
-        let levels: Vec<Value> = self
-            .levels
-            .iter()
-            .map(|l| {
-                json!({
-                    "level": l.level,
-                    "max_cluster_sites": l.max_cluster_sites,
-                    "variables": l.variables,
-                    "sum_rule": l.sum_rule,
-                    "regions": l.regions.iter().map(|g| json!({
-                        "sites": g.sites, "per_cell": g.per_cell, "coefficient": g.coefficient,
-                    })).collect::<Vec<_>>(),
-                })
-            })
-            .collect();
-        Ok(json!({
-            "name": self.name,
-            "description": self.description,
-            "dimension": self.dimension,
-            "sites_per_cell": self.sites_per_cell,
-            "bonds_per_cell": self.bonds_per_cell,
-            "coordination": coordination,
-            "bipartite": self.bipartite,
-            "reference": self.reference.as_ref().map(|(tc, source)| json!({"tc": tc, "source": source})),
-            "levels": levels,
-        }))
-    }
-
-    fn csv(&self) -> Grid {
-        let mut grid = Grid::new([
-            "lattice",
-            "level",
-            "max_cluster_sites",
-            "variables",
-            "sites",
-            "per_cell",
-            "coefficient",
-        ]);
-        for l in &self.levels {
-            for g in &l.regions {
-                grid.push([
-                    self.name.clone(),
-                    l.level.clone(),
-                    l.max_cluster_sites.to_string(),
-                    l.variables.to_string(),
-                    g.sites.to_string(),
-                    g.per_cell.to_string(),
-                    g.coefficient.to_string(),
-                ]);
-            }
-        }
-        grid
-    }
-
-    fn table(&self) -> TextDoc {
-        let coordination: Vec<String> = self
-            .coordination
-            .iter()
-            .map(|(n, z)| format!("{n}: {z}"))
-            .collect();
-        let reference = match &self.reference {
-            Some((tc, source)) => format!("Tc = {} ({source})", num(*tc)),
-            None => "none given".to_string(),
-        };
-        let mut blocks = vec![Block::Fields(vec![
-            ("name".into(), self.name.clone()),
-            (
-                "description".into(),
-                self.description.clone().unwrap_or_else(|| "-".into()),
-            ),
-            ("dimension".into(), self.dimension.to_string()),
-            ("sites per cell".into(), self.sites_per_cell.to_string()),
-            ("bonds per cell".into(), self.bonds_per_cell.to_string()),
-            ("coordination".into(), coordination.join(", ")),
-            (
-                "bipartite".into(),
-                if self.bipartite { "yes" } else { "no" }.into(),
-            ),
-            ("reference".into(), reference),
-        ])];
-        let mut overview = Grid::new(["level", "largest cluster", "regions", "variables"]);
-        for l in &self.levels {
-            let orbits: usize = l.regions.iter().map(|g| g.per_cell).sum();
-            overview.push([
-                l.level.clone(),
-                l.max_cluster_sites.to_string(),
-                orbits.to_string(),
-                l.variables.to_string(),
-            ]);
-        }
-        blocks.push(Block::Heading("Levels".into()));
-        blocks.push(Block::Table(overview));
-        for l in &self.levels {
-            blocks.push(Block::Heading(format!(
-                "Level {}: largest cluster {} site(s), {} correlation variable(s)",
-                l.level, l.max_cluster_sites, l.variables
-            )));
-            let mut grid = Grid::new(["sites", "per cell", "coefficient"]);
-            for g in &l.regions {
-                grid.push([
-                    g.sites.to_string(),
-                    g.per_cell.to_string(),
-                    g.coefficient.to_string(),
-                ]);
-            }
-            blocks.push(Block::Table(grid));
-            let mark = if l.sum_rule == self.sites_per_cell as i64 {
-                "ok".to_string()
-            } else {
-                format!("WRONG: expected {}", self.sites_per_cell)
-            };
-            blocks.push(Block::Line(format!(
-                "sum rule: Σ per cell × coefficient × sites = {} ({mark})",
-                l.sum_rule
-            )));
-        }
-        TextDoc {
-            title: format!("rungs inspect: lattice `{}`", self.name),
-            blocks,
-            notes: vec![
-                "regions = maximal clusters and their intersections; rows group regions of equal size and \
-                 coefficient, `per cell` counts their translation orbits; coefficient-0 regions are omitted."
-                    .into(),
-                "entropy per cell = Σ per cell × coefficient × S(region) (Kikuchi 1951, Phys. Rev. 81, 988); \
-                 the sum rule must give the sites per cell."
-                    .into(),
-                "levels `site` (mean field) and `pair` (Bethe) exist on every lattice; the others come from \
-                 the file's `clusters`."
-                    .into(),
-            ],
-        }
     }
 }

@@ -37,9 +37,12 @@ pub use report::TcReport;
 
 /// Footer note: which levels are variational bounds.
 pub const NOT_BOUNDS_NOTE: &str =
-    "cluster levels other than `site` are approximations, not bounds: their \
-     Tc and F may lie on either side of the exact values (`site` is the Bogoliubov variational \
-     bound on F, F_site ≥ F_exact).";
+    "bounds: `site` gives F_site ≥ F_exact for any couplings and field (Bogoliubov inequality) \
+     and, for ferromagnets (all J ≥ 0), Tc_site ≥ Tc_exact (Griffiths 1967, Commun. Math. Phys. \
+     6, 121); `pair` gives, for ferromagnets, F_pair ≥ F_exact in any field (Ruozzi 2012, NIPS \
+     25, 117) and Tc_pair ≥ Tc_exact (correlations bounded by non-backtracking walks: Fisher \
+     1967; Saade, Krzakala & Zdeborová 2016, arXiv:1609.08269). Larger clusters are \
+     approximations, not bounds: their Tc and F may lie on either side of the exact values.";
 
 /// Footer note for one-dimensional lattices.
 pub const ONE_D_NOTE: &str = "1D lattice: the exact model has no order at any T > 0 (Ising 1925, \

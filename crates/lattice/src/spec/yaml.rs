@@ -101,12 +101,16 @@ pub(crate) fn parse(text: &str, file: &str) -> Result<Node, LatticeError> {
         non_finite_float_policy: NonFiniteFloatPolicy::PassThrough,
         with_snippet: false,
     };
-    serde_saphyr::from_str_with_options::<Node>(text, options).map_err(|e| syntax_error(&e, file))
+    serde_saphyr::from_str_with_options::<Node>(text, options)
+        .map_err(|e| syntax_error(&e, text, file))
 }
 
 /// Turn a parser error into [`LatticeError::Syntax`], moving its location into the place.
-fn syntax_error(e: &serde_saphyr::Error, file: &str) -> LatticeError {
-    let (line, column) = e.location().map_or((0, 0), |l| (l.line(), l.column()));
+/// When a flow bracket opened on an earlier line is still open where the parser stopped,
+/// the error points at that bracket instead: a missing `]` or `}` is the likely cause,
+/// and the parser's own position is only where it noticed.
+fn syntax_error(e: &serde_saphyr::Error, text: &str, file: &str) -> LatticeError {
+    let (mut line, mut column) = e.location().map_or((0, 0), |l| (l.line(), l.column()));
     let mut message = e.without_snippet().to_string();
     let suffix = format!(" at line {line}, column {column}");
     if let Some(stripped) = message.strip_suffix(&suffix) {
@@ -117,6 +121,14 @@ fn syntax_error(e: &serde_saphyr::Error, file: &str) -> LatticeError {
     } else if message.starts_with("budget breached") {
         message =
             format!("{message}; the file nests too deeply or is far too large for a lattice file");
+    } else if let Some(open) = super::brackets::unclosed_before(text, line, column) {
+        message = format!(
+            "`{}` opened here is never closed: add the missing `{}` (the parser only noticed at \
+             line {line}, column {column}: {message})",
+            open.bracket,
+            open.closer()
+        );
+        (line, column) = (open.line, open.column);
     } else {
         message
             .push_str("; fix the YAML syntax there (indentation, brackets, quotes, `key: value`)");

@@ -34,7 +34,19 @@ pub enum ClosedForm {
         /// Coupling J.
         j: f64,
     },
-    /// The ferromagnetic kagome lattice: critical temperature only (Kanô & Naya 1953).
+    /// The ferromagnetic triangular lattice with unequal couplings on its three bond
+    /// directions, zero field: critical temperature only (Houtappel 1950).
+    TriangularAnisotropic {
+        /// Couplings J₁, J₂, J₃ > 0, in the lattice file's bond order.
+        j: [f64; 3],
+    },
+    /// The honeycomb lattice with unequal couplings on its three bond directions (either
+    /// sign), zero field: critical temperature only (Houtappel 1950).
+    HoneycombAnisotropic {
+        /// Couplings J₁, J₂, J₃, in the lattice file's bond order.
+        j: [f64; 3],
+    },
+    /// The ferromagnetic kagome lattice: critical temperature only (Syozi 1951).
     Kagome {
         /// Coupling J > 0.
         j: f64,
@@ -101,7 +113,9 @@ fn fuc(form: &ClosedForm, t: f64, h: f64) -> Option<(f64, f64, f64)> {
             let s = houtappel::honeycomb(t, j);
             Some((s.free_energy, s.energy, s.specific_heat))
         }
-        ClosedForm::Kagome { .. } => None,
+        ClosedForm::Kagome { .. }
+        | ClosedForm::TriangularAnisotropic { .. }
+        | ClosedForm::HoneycombAnisotropic { .. } => None,
     }
 }
 
@@ -120,6 +134,8 @@ impl ClosedForm {
             ClosedForm::Square { .. } => "anisotropic square",
             ClosedForm::Triangular { .. } => "triangular",
             ClosedForm::Honeycomb { .. } => "honeycomb",
+            ClosedForm::TriangularAnisotropic { .. } => "anisotropic triangular",
+            ClosedForm::HoneycombAnisotropic { .. } => "anisotropic honeycomb",
             ClosedForm::Kagome { .. } => "kagome",
             ClosedForm::Bethe { .. } => "Bethe lattice",
         }
@@ -134,7 +150,15 @@ impl ClosedForm {
             }
             ClosedForm::Triangular { .. } => "Houtappel (1950), Physica 16, 425; Potts (1952), Phys. Rev. 88, 352",
             ClosedForm::Honeycomb { .. } => "Houtappel (1950), Physica 16, 425",
-            ClosedForm::Kagome { .. } => "Kanô & Naya (1953), Prog. Theor. Phys. 10, 158",
+            ClosedForm::TriangularAnisotropic { .. } => {
+                "Houtappel (1950), Physica 16, 425 — exact critical condition sinh 2K₁ sinh 2K₂ + sinh 2K₂ sinh 2K₃ + sinh 2K₃ sinh 2K₁ = 1"
+            }
+            ClosedForm::HoneycombAnisotropic { .. } => {
+                "Houtappel (1950), Physica 16, 425 — exact critical condition tanh K₁ tanh K₂ + tanh K₂ tanh K₃ + tanh K₃ tanh K₁ = 1"
+            }
+            ClosedForm::Kagome { .. } => {
+                "Syozi (1951), Prog. Theor. Phys. 6, 306; Kanô & Naya (1953), Prog. Theor. Phys. 10, 158"
+            }
             ClosedForm::Bethe { .. } => "Bethe (1935), Proc. R. Soc. A 150, 552; Baxter (1982), Exactly Solved Models, ch. 4",
         }
     }
@@ -147,6 +171,8 @@ impl ClosedForm {
             ClosedForm::Square { j1, j2 } => exact_tc::anisotropic_square_tc(j1, j2),
             ClosedForm::Triangular { j } => Some(exact_tc::triangular_tc(j)),
             ClosedForm::Honeycomb { j } => Some(exact_tc::honeycomb_tc(j)),
+            ClosedForm::TriangularAnisotropic { j } => exact_tc::anisotropic_triangular_tc(j),
+            ClosedForm::HoneycombAnisotropic { j } => exact_tc::anisotropic_honeycomb_tc(j),
             ClosedForm::Kagome { j } => Some(exact_tc::kagome_tc(j)),
             ClosedForm::Bethe { z, j } => exact_tc::bethe_tc(z, j),
         }
@@ -175,8 +201,8 @@ impl ClosedForm {
 
     /// Magnetisation per site; at h = 0 below Tc the spontaneous magnetisation (h → 0⁺
     /// branch). Known for the chain and Bethe lattice at any field, the square and
-    /// triangular lattices at h = 0; for the honeycomb and kagome lattices only above Tc
-    /// (where it is 0).
+    /// triangular lattices at h = 0; for the honeycomb, kagome and anisotropic triangular
+    /// and honeycomb lattices only above Tc (where it is 0).
     pub fn magnetization(&self, t: f64, h: f64) -> Option<f64> {
         if !valid(t, h) {
             return None;
@@ -187,7 +213,10 @@ impl ClosedForm {
             _ if h != 0.0 => None,
             ClosedForm::Square { j1, j2 } => Some(onsager::square_magnetization(t, j1, j2)),
             ClosedForm::Triangular { j } => Some(houtappel::triangular_magnetization(t, j)),
-            ClosedForm::Honeycomb { .. } | ClosedForm::Kagome { .. } => {
+            ClosedForm::Honeycomb { .. }
+            | ClosedForm::Kagome { .. }
+            | ClosedForm::TriangularAnisotropic { .. }
+            | ClosedForm::HoneycombAnisotropic { .. } => {
                 self.tc().filter(|&tc| t > tc).map(|_| 0.0)
             }
         }

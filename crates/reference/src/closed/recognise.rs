@@ -8,9 +8,11 @@
 //! * **square**: 2D, one site per cell, two bonds with linearly independent offsets
 //!   (couplings may differ: anisotropic);
 //! * **triangular**: 2D, one site per cell, three bonds with pairwise independent offsets
-//!   `v₁, v₂, v₃` with `v₃ = ±v₁ ± v₂`, equal ferromagnetic couplings;
+//!   `v₁, v₂, v₃` with `v₃ = ±v₁ ± v₂`, ferromagnetic couplings (equal: the full
+//!   closed form; unequal: the anisotropic critical condition);
 //! * **honeycomb**: 2D, two sites per cell, three bonds all joining the two sublattices
-//!   at distinct offsets whose differences span the plane, equal couplings;
+//!   at distinct offsets whose differences span the plane (equal couplings: the full
+//!   closed form; unequal, of any signs: the anisotropic critical condition);
 //! * **kagome**: 2D, three sites per cell, six bonds, two between each pair of
 //!   sublattices and none within one, splitting into two closed triangles (offsets summing
 //!   to zero around each) whose relative shifts span the plane, equal ferromagnetic
@@ -75,16 +77,25 @@ pub fn recognise_bonds(
             j2: js[1],
         }),
         (2, 1, 3) => {
-            let j = all_equal(&js).filter(|&j| j > 0.0)?;
+            if js.iter().any(|&j| j <= 0.0) {
+                return None;
+            }
             let (v1, v2, v3) = (bonds[0].cell, bonds[1].cell, bonds[2].cell);
             let independent = det(v1, v2) != 0 && det(v1, v3) != 0 && det(v2, v3) != 0;
             let closes = [add(v1, v2), sub(v1, v2)]
                 .iter()
                 .any(|&s| s == v3 || neg(s) == v3);
-            (independent && closes).then_some(ClosedForm::Triangular { j })
+            if !(independent && closes) {
+                return None;
+            }
+            Some(match all_equal(&js) {
+                Some(j) => ClosedForm::Triangular { j },
+                None => ClosedForm::TriangularAnisotropic {
+                    j: [js[0], js[1], js[2]],
+                },
+            })
         }
         (2, 2, 3) => {
-            let j = all_equal(&js)?;
             if bonds.iter().any(|b| b.from == b.to) {
                 return None;
             }
@@ -93,7 +104,15 @@ pub fn recognise_bonds(
                 .iter()
                 .map(|b| if b.from == 0 { b.cell } else { neg(b.cell) })
                 .collect();
-            (det(sub(d[1], d[0]), sub(d[2], d[0])) != 0).then_some(ClosedForm::Honeycomb { j })
+            if det(sub(d[1], d[0]), sub(d[2], d[0])) == 0 {
+                return None;
+            }
+            Some(match all_equal(&js) {
+                Some(j) => ClosedForm::Honeycomb { j },
+                None => ClosedForm::HoneycombAnisotropic {
+                    j: [js[0], js[1], js[2]],
+                },
+            })
         }
         (2, 3, 6) => {
             let j = all_equal(&js).filter(|&j| j > 0.0)?;
@@ -208,9 +227,37 @@ mod tests {
         ];
         assert_eq!(
             recognise_bonds(2, 1, &b),
-            None,
-            "anisotropic triangular has no closed form here"
+            Some(ClosedForm::TriangularAnisotropic { j: [1.0, 1.0, 0.5] }),
+            "unequal couplings: Houtappel's anisotropic condition"
         );
+        let b = [
+            bond(0, 0, [1, 0], 1.0),
+            bond(0, 0, [0, 1], 1.0),
+            bond(0, 0, [1, 1], -0.5),
+        ];
+        assert_eq!(
+            recognise_bonds(2, 1, &b),
+            None,
+            "a frustrating bond: no closed form here"
+        );
+    }
+
+    #[test]
+    fn recognises_anisotropic_honeycomb_of_any_signs() {
+        let b = [
+            bond(0, 1, [0, 0], 1.0),
+            bond(0, 1, [-1, 0], 0.5),
+            bond(0, 1, [0, -1], -0.25),
+        ];
+        let form = recognise_bonds(2, 2, &b).unwrap();
+        assert_eq!(
+            form,
+            ClosedForm::HoneycombAnisotropic {
+                j: [1.0, 0.5, -0.25]
+            }
+        );
+        assert!(form.tc().is_some_and(|t| t > 0.0));
+        assert_eq!(form.free_energy(1.0, 0.0), None);
     }
 
     #[test]

@@ -365,8 +365,10 @@ pub fn rung_notes(lattice: &Lattice, rungs: &[RungResult]) -> Vec<String> {
         }
     }
     notes.push(
-        "every level is an approximation, not a bound: a rung's Tc may lie on either side of the exact one \
-         (for ferromagnets the cluster rungs usually lie above it and fall toward it as the clusters grow)"
+        "for ferromagnets (all J ≥ 0) the `site` and `pair` Tc are rigorous upper bounds on the exact Tc \
+         (Griffiths 1967, Commun. Math. Phys. 6, 121; Fisher 1967); larger clusters are approximations, not \
+         bounds: their Tc may lie on either side of the exact one (for ferromagnets they usually lie above it \
+         and fall toward it as the clusters grow)"
             .into(),
     );
     if lattice.dimension() == 1 {

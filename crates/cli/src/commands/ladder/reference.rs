@@ -1,7 +1,7 @@
 //! What the rungs are judged against, in order of preference:
 //!
 //! 1. the exact Tc of a closed form recognised from the lattice's bonds (Onsager,
-//!    Houtappel, Kanô & Naya, ...; `rungs_reference::closed`);
+//!    Houtappel, Syozi, ...; `rungs_reference::closed`);
 //! 2. the file's `reference: {tc, source}`;
 //! 3. with `--mc`, and only when neither exists, a Monte Carlo estimate made on the spot:
 //!    Wolff (or Metropolis) runs on three torus sizes around the best rung's Tc and the
@@ -275,7 +275,7 @@ pub fn cautions(
     if has_gamma && ferro {
         match lattice.dimension() {
             2 => notes.push(
-                "γ of the 2D Ising class is exactly 7/4 (Wu, McCoy, Tracy & Barouch 1976, Phys. Rev. B 13, 316)".into(),
+                "γ of the 2D Ising class is exactly 7/4 (Barouch, McCoy & Wu 1973, Phys. Rev. Lett. 31, 1409; Wu, McCoy, Tracy & Barouch 1976, Phys. Rev. B 13, 316)".into(),
             ),
             3 => notes.push(
                 "γ of the 3D Ising class is 1.2371(1) (Butera & Comi 2002, Phys. Rev. B 65, 144431, high-temperature series)"
