@@ -19,6 +19,7 @@
 //! ```
 
 pub mod cluster;
+pub mod compact;
 pub mod error;
 pub mod level;
 pub mod model;
@@ -30,6 +31,7 @@ pub mod torus;
 
 pub use cluster::Cluster;
 pub use error::LatticeError;
-pub use level::{BondTerm, Level, Region, MAX_CLUSTER_SITES};
+pub use compact::{CompactLevel, CompactRegion};
+pub use level::{BondTerm, Level, Region, Skeleton, MAX_CLUSTER_SITES, MAX_MATERIALISED_SITES};
 pub use model::{Bond, Cell, Lattice, LevelSpec, Reference, Site};
 pub use torus::Torus;

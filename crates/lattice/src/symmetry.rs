@@ -208,9 +208,14 @@ fn search(
 
 /// The operations of `ops` that map the level's set of maximal clusters onto itself.
 pub fn level_group(level: &Level, ops: &[SiteMap]) -> Vec<SiteMap> {
-    let maximal: BTreeSet<&Cluster> = level.maximal.iter().collect();
+    group_of(&level.maximal, ops)
+}
+
+/// The operations of `ops` that map the set of `maximal` clusters onto itself.
+pub fn group_of(maximal: &[Cluster], ops: &[SiteMap]) -> Vec<SiteMap> {
+    let set: BTreeSet<&Cluster> = maximal.iter().collect();
     ops.iter()
-        .filter(|op| level.maximal.iter().all(|m| maximal.contains(&op.image(m))))
+        .filter(|op| maximal.iter().all(|m| set.contains(&op.image(m))))
         .cloned()
         .collect()
 }

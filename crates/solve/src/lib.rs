@@ -14,6 +14,7 @@ pub mod equilibrium;
 pub mod error;
 pub mod extrapolate;
 pub mod functional;
+pub mod krylov;
 pub mod state;
 pub mod sweep;
 pub mod tc;
