@@ -59,22 +59,42 @@ pub fn compact_level(lattice: &Lattice, name: &str) -> Result<CompactLevel, Solv
     })
 }
 
-/// Where a big level's search starts without a hint: the Tc of the pair level (Bethe),
-/// which the dense engine finds in milliseconds and which lies above the Tc of larger
-/// clusters of a ferromagnet (the search steps up if it does not); the mean-field Tc
-/// when the pair level has none.
-fn own_start(lattice: &Lattice, scale: f64) -> f64 {
-    Level::build(lattice, "pair")
-        .ok()
-        .and_then(|l| crate::tc::critical_temperature(lattice, &l, TcOptions::default()).ok())
-        .and_then(|cp| cp.tc)
-        .filter(|t| t.is_finite() && *t > 0.0)
-        .unwrap_or(scale * 1.02)
+/// Where a big level's search starts without a hint: the Tc of the largest level of
+/// the lattice that has smaller clusters and fits the dense engine (e.g. the 3×3 block
+/// for the 4×4 block; at least the pair level, Bethe), found in milliseconds. For a
+/// ferromagnet it lies above the Tc of larger clusters; the search steps up if it does
+/// not. The mean-field Tc when no smaller level orders.
+fn own_start(lattice: &Lattice, sites: usize, scale: f64) -> f64 {
+    let mut smaller: Vec<(usize, String)> = Level::names(lattice)
+        .into_iter()
+        .filter(|n| n != "site")
+        .filter_map(|n| {
+            let s = Level::max_cluster_sites_of(lattice, &n).ok()?;
+            (s < sites).then_some((s, n))
+        })
+        .collect();
+    smaller.sort_by(|a, b| b.0.cmp(&a.0));
+    for (_, name) in smaller {
+        let Ok(level) = Level::build(lattice, &name) else {
+            continue;
+        };
+        if crate::functional::check_size(&level).is_err() {
+            continue;
+        }
+        if let Some(tc) = crate::tc::critical_temperature(lattice, &level, TcOptions::default())
+            .ok()
+            .and_then(|cp| cp.tc)
+            .filter(|t| t.is_finite() && *t > 0.0)
+        {
+            return tc;
+        }
+    }
+    scale * 1.02
 }
 
 /// Tc of a compact level at h = 0 (symmetric critical mode), matrix-free. The search
-/// starts at `options.start_below`, or at the pair level's Tc, so the result does not
-/// depend on which other levels were computed.
+/// starts at `options.start_below`, or at the Tc of a smaller level solved here (see
+/// `own_start`), so the result does not depend on which other levels were computed.
 pub fn critical_temperature_compact(
     lattice: &Lattice,
     level: &CompactLevel,
@@ -85,7 +105,7 @@ pub fn critical_temperature_compact(
     let start = options
         .start_below
         .filter(|t| t.is_finite() && *t > 0.0)
-        .unwrap_or_else(|| own_start(lattice, scale));
+        .unwrap_or_else(|| own_start(lattice, level.max_cluster_sites, scale));
     let mut probe = SymmetricProbe::new(level);
     let search = find_tc(
         &mut probe,

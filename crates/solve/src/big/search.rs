@@ -176,7 +176,7 @@ impl<'a> SymmetricProbe<'a> {
                 ops.product(odd, v, out)
             };
             let mut pre = |v: &[f64], out: &mut [f64]| ops.precondition(odd, v, out);
-            lobpcg_lowest(&mut op, &metric, &mut pre, &start, 1e-9, 2000)
+            lobpcg_lowest(&mut op, &metric, &mut pre, &start, 1e-12, 2000)
         };
         self.products += products;
         if !eig.value.is_finite() {
@@ -185,7 +185,6 @@ impl<'a> SymmetricProbe<'a> {
                 detail: format!("the odd-sector eigenvalue at T = {t} is not finite"),
             });
         }
-        if std::env::var_os("RUNGS_DEBUG").is_some() { eprintln!("probe T {t} lambda {:.6e} its {} res {:.2e}", eig.value, eig.iterations, eig.residual); }
         self.mode = Some(eig.vector);
         let v = ProbeValue {
             value: eig.value,
