@@ -93,12 +93,12 @@ impl CompactLevel {
         };
         let site_vars = (0..lattice.sites_per_cell())
             .map(|a| {
-                key_of(&[(a, [0; 3])])
-                    .map(|v| v as usize)
-                    .ok_or_else(|| LatticeError::CompactLimit {
+                key_of(&[(a, [0; 3])]).map(|v| v as usize).ok_or_else(|| {
+                    LatticeError::CompactLimit {
                         level: name.to_string(),
                         detail: format!("basis site {a} lies in no cluster of the level"),
-                    })
+                    }
+                })
             })
             .collect::<Result<Vec<usize>, _>>()?;
         let bond_terms = lattice
@@ -178,7 +178,7 @@ impl Grid {
             return Err(LatticeError::CompactLimit {
                 level: sk.name.clone(),
                 detail: format!(
-                    "its clusters and their symmetric images span {positions} (site, cell) positions, more than the 128 the compact representation holds; choose a more compact cluster"
+                    "its clusters and their symmetric images span {positions} (site, cell) positions, above the limit of 128 that the orbit-reduced (big-level) representation holds; choose a more compact cluster"
                 ),
             });
         }
@@ -293,10 +293,12 @@ impl ImageTable {
                 lo[d] = lo[d].min(low[d][v]);
             }
         }
-        let mut shift = 0;
-        for d in 0..self.dims {
-            shift += lo[d] as u32 * self.stride[d];
-        }
+        let shift: u32 = lo
+            .iter()
+            .zip(&self.stride)
+            .take(self.dims)
+            .map(|(l, s)| *l as u32 * s)
+            .sum();
         bits >> shift
     }
 }
@@ -304,11 +306,7 @@ impl ImageTable {
 /// Orbit key of a mask: the smallest key over the images.
 #[inline]
 fn orbit_key(images: &[ImageTable], mask: u32) -> u128 {
-    images
-        .iter()
-        .map(|t| t.key(mask))
-        .min()
-        .unwrap_or_default()
+    images.iter().map(|t| t.key(mask)).min().unwrap_or_default()
 }
 
 /// A fast hasher for u128 keys (a multiply–fold mix; the keys are not adversarial).

@@ -30,8 +30,8 @@ mod testutil;
 pub mod torus;
 
 pub use cluster::Cluster;
-pub use error::LatticeError;
 pub use compact::{CompactLevel, CompactRegion};
+pub use error::LatticeError;
 pub use level::{BondTerm, Level, Region, Skeleton, MAX_CLUSTER_SITES, MAX_MATERIALISED_SITES};
 pub use model::{Bond, Cell, Lattice, LevelSpec, Reference, Site};
 pub use torus::Torus;

@@ -269,7 +269,10 @@ pub fn coherent_anomaly(rungs: &[Rung]) -> Result<Extrapolation, ExtrapolationEr
         tcs.push(linear_fit(&x, &y).0);
         // Twice the largest deviation: the variants share the one-sided bias.
         let reach = |w: &[f64], c: f64| 2.0 * w.iter().map(|x| (x - c).abs()).fold(0.0, f64::max);
-        (reach(&tcs, tc), (s_psi * s_psi + reach(&psis, psi).powi(2)).sqrt())
+        (
+            reach(&tcs, tc),
+            (s_psi * s_psi + reach(&psis, psi).powi(2)).sqrt(),
+        )
     } else {
         // No degrees of freedom: the honest error is how far the two methods disagree.
         let lin = prepare(&v);

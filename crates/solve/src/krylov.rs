@@ -119,7 +119,10 @@ pub struct Eigen {
 
 /// B-inner product with a diagonal B.
 fn bdot(b: &[f64], x: &[f64], y: &[f64]) -> f64 {
-    b.iter().zip(x.iter().zip(y)).map(|(b, (x, y))| b * x * y).sum()
+    b.iter()
+        .zip(x.iter().zip(y))
+        .map(|(b, (x, y))| b * x * y)
+        .sum()
 }
 
 /// Lowest eigenpair of `A u = λ B u` (B = diag(b) > 0), with the preconditioner `t`
@@ -148,12 +151,7 @@ pub fn lobpcg_lowest(
     let mut residual;
     loop {
         let r: Vec<f64> = (0..n).map(|i| ax[i] - lambda * b[i] * x[i]).collect();
-        residual = r
-            .iter()
-            .zip(b)
-            .map(|(r, b)| r * r / b)
-            .sum::<f64>()
-            .sqrt();
+        residual = r.iter().zip(b).map(|(r, b)| r * r / b).sum::<f64>().sqrt();
         if residual <= tol || iterations >= max_iter {
             break;
         }
@@ -275,7 +273,11 @@ mod tests {
         assert!(!res.negative_curvature);
         let mut ax = vec![0.0; n];
         a(&res.x, &mut ax);
-        let err = ax.iter().zip(&b).map(|(p, q)| (p - q).abs()).fold(0.0, f64::max);
+        let err = ax
+            .iter()
+            .zip(&b)
+            .map(|(p, q)| (p - q).abs())
+            .fold(0.0, f64::max);
         assert!(err < 1e-10, "{err}");
     }
 

@@ -64,6 +64,13 @@ struct Shared(*mut f64);
 unsafe impl Send for Shared {}
 unsafe impl Sync for Shared {}
 
+impl Shared {
+    /// The pointer (a method, so closures capture the whole `Shared`).
+    fn ptr(&self) -> *mut f64 {
+        self.0
+    }
+}
+
 /// The levels `BLOCK … rows·BLOCK/2` on the strip of columns `c0 .. c0 + STRIP`.
 ///
 /// # Safety
@@ -112,16 +119,15 @@ pub fn wht_fast(f: &mut [f64]) {
     #[cfg(target_arch = "x86_64")]
     let avx2 = std::arch::is_x86_feature_detected!("avx2");
     (0..BLOCK / STRIP).into_par_iter().for_each(|s| {
-        let base = base;
         // SAFETY: f holds rows·BLOCK values; strip s owns columns s·STRIP .. +STRIP.
         #[cfg(target_arch = "x86_64")]
         {
             if avx2 {
-                unsafe { strip_avx2(base.0, s * STRIP, rows) };
+                unsafe { strip_avx2(base.ptr(), s * STRIP, rows) };
                 return;
             }
         }
-        unsafe { strip_generic(base.0, s * STRIP, rows) };
+        unsafe { strip_generic(base.ptr(), s * STRIP, rows) };
     });
 }
 
@@ -157,7 +163,9 @@ mod tests {
         // Butterflies are exact sums of the same operands in the same order per output,
         // so the two agree to the last bit.
         let n = 1 << 17;
-        let f: Vec<f64> = (0..n).map(|i| ((i * 7919) % 1013) as f64 * 0.01 - 5.0).collect();
+        let f: Vec<f64> = (0..n)
+            .map(|i| ((i * 7919) % 1013) as f64 * 0.01 - 5.0)
+            .collect();
         let (mut a, mut b) = (f.clone(), f);
         wht(&mut a);
         wht_fast(&mut b);

@@ -50,7 +50,8 @@ fn dense_orbit_path_matches_the_dense_engine() {
         let l = shipped(stem);
         let lvl = level(&l, lv);
         let dense = critical_temperature(&l, &lvl, TcOptions::default()).unwrap();
-        let orbit = critical_temperature_orbits_dense(&l, &lvl, TcOptions::default(), None).unwrap();
+        let orbit =
+            critical_temperature_orbits_dense(&l, &lvl, TcOptions::default(), None).unwrap();
         let (td, tb) = (dense.tc.unwrap(), orbit.tc.unwrap());
         assert!((td / tb - 1.0).abs() < 1e-8, "{stem}/{lv}: {td} vs {tb}");
     }
@@ -130,9 +131,21 @@ fn symmetric_thermodynamics_obeys_finite_differences() {
     let chi = (hp.magnetization - hm.magnetization) / (2.0 * d);
     let cv = (tp.energy - tm.energy) / (2.0 * d);
     let m = -(hp.free_energy - hm.free_energy) / (2.0 * d);
-    assert!(close(chi, o.susceptibility, 1e-5), "{chi} vs {}", o.susceptibility);
-    assert!(close(cv, o.specific_heat, 1e-5), "{cv} vs {}", o.specific_heat);
-    assert!(close(m, o.magnetization, 1e-6), "{m} vs {}", o.magnetization);
+    assert!(
+        close(chi, o.susceptibility, 1e-5),
+        "{chi} vs {}",
+        o.susceptibility
+    );
+    assert!(
+        close(cv, o.specific_heat, 1e-5),
+        "{cv} vs {}",
+        o.specific_heat
+    );
+    assert!(
+        close(m, o.magnetization, 1e-6),
+        "{m} vs {}",
+        o.magnetization
+    );
 }
 
 /// Long validation (about 10 s in release, more on a loaded machine):
@@ -170,7 +183,9 @@ fn square_block4_tc_on_both_big_paths() {
 fn square_block5_lies_between_onsager_and_the_4x4_block() {
     // Onsager (1944), Phys. Rev. 65, 117: Tc = 2/ln(1+√2) bounds the ladder below; the
     // block sequence must be monotone (4×4: 2.3186948, this project's value above).
-    let l = shipped("square").with_block_level("block5", [5, 5, 1]).unwrap();
+    let l = shipped("square")
+        .with_block_level("block5", [5, 5, 1])
+        .unwrap();
     let c = CompactLevel::build(&l, "block5").unwrap();
     let options = TcOptions {
         start_below: Some(2.3186948),
@@ -187,11 +202,18 @@ fn compact_levels_count_like_the_listed_ones() {
     for (stem, lv) in LEVELS {
         let l = shipped(stem);
         let listed = level(&l, lv);
-        let ops = rungs_lattice::symmetry::level_group(&listed, &rungs_lattice::symmetry::point_group(&l));
+        let ops = rungs_lattice::symmetry::level_group(
+            &listed,
+            &rungs_lattice::symmetry::point_group(&l),
+        );
         let orbits = rungs_lattice::symmetry::variable_orbits(&listed, &ops);
         let n_orbits = orbits.iter().max().unwrap() + 1;
         let compact = CompactLevel::build(&l, lv).unwrap();
-        assert_eq!(compact.translation_classes(), listed.variables.len(), "{stem}/{lv}");
+        assert_eq!(
+            compact.translation_classes(),
+            listed.variables.len(),
+            "{stem}/{lv}"
+        );
         assert_eq!(compact.len(), n_orbits, "{stem}/{lv}");
     }
 }

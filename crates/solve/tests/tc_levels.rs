@@ -178,18 +178,20 @@ fn pair_level_amplitude_is_half_tc_on_the_square_lattice() {
 }
 
 #[test]
-fn a_big_level_with_little_symmetry_is_refused_up_front() {
-    // Three different couplings leave the triangular lattice only the inversion: the
-    // 4×4 block's orbits exceed the big-level limit, refused before any matrix exists.
+fn a_big_level_too_spread_out_is_refused_up_front() {
+    // A 16-site row of cells and its rotated image span a 16×16 grid of positions, more
+    // than the big-level (orbit) representation holds: refused before any work.
     let l = inline(
-        "name: tri3\ndimension: 2\nvectors: [[1.0, 0.0], [0.5, 0.866]]\nbasis: [{name: a}]\n\
-         couplings: {J1: 1.0, J2: 0.9, J3: 0.8}\nbonds:\n  - {from: a, to: a, cell: [1, 0], coupling: J1}\n  \
-         - {from: a, to: a, cell: [0, 1], coupling: J2}\n  - {from: a, to: a, cell: [-1, 1], coupling: J3}\n\
-         clusters:\n  block4:\n    block: [4, 4]\n",
+        "name: sq\ndimension: 2\nvectors: [[1.0, 0.0], [0.0, 1.0]]\nbasis: [{name: a}]\n\
+         couplings: {J: 1.0}\nbonds:\n  - {from: a, to: a, cell: [1, 0], coupling: J}\n  \
+         - {from: a, to: a, cell: [0, 1], coupling: J}\nclusters:\n  long:\n    block: [16, 1]\n",
     );
-    let lv = level(&l, "block4");
+    let lv = level(&l, "long");
     let e = critical_temperature(&l, &lv, TcOptions::default()).unwrap_err();
-    assert!(matches!(e, rungs_solve::SolveError::TooLarge { .. }), "{e}");
+    assert!(
+        matches!(e, rungs_solve::SolveError::TcSearch { .. }) && e.to_string().contains("limit"),
+        "{e}"
+    );
 }
 
 /// Long validation (about a minute in release; see docs/validation.md):

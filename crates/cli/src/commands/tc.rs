@@ -226,13 +226,11 @@ pub fn search(
             }
         }
         (Err(reason), None) => TcOutcome::Refused(reason.clone()),
-        (Ok(level), None) => {
-            match critical_temperature(lattice, level, options) {
-                Ok(cp) => TcOutcome::Searched(cp),
-                Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
-                Err(e) => return Err(solve_error(e)),
-            }
-        }
+        (Ok(level), None) => match critical_temperature(lattice, level, options) {
+            Ok(cp) => TcOutcome::Searched(cp),
+            Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
+            Err(e) => return Err(solve_error(e)),
+        },
     };
     Ok(LevelTc {
         level: p.name.clone(),

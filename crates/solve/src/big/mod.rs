@@ -73,7 +73,7 @@ fn own_start(lattice: &Lattice, sites: usize, scale: f64) -> f64 {
             (s < sites).then_some((s, n))
         })
         .collect();
-    smaller.sort_by(|a, b| b.0.cmp(&a.0));
+    smaller.sort_by_key(|b| std::cmp::Reverse(b.0));
     for (_, name) in smaller {
         let Ok(level) = Level::build(lattice, &name) else {
             continue;

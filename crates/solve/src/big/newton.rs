@@ -134,12 +134,15 @@ impl<'m, 'a> SectorOps<'m, 'a> {
 /// definite there) replaced by the largest magnitude, so the preconditioner stays
 /// positive.
 pub fn inverse_diagonal(d: &[f64], free: &[usize]) -> Vec<f64> {
-    let big = free
-        .iter()
-        .map(|&k| d[k].abs())
-        .fold(1e-300, f64::max);
+    let big = free.iter().map(|&k| d[k].abs()).fold(1e-300, f64::max);
     free.iter()
-        .map(|&k| if d[k] > 1e-14 * big { 1.0 / d[k] } else { 1.0 / big })
+        .map(|&k| {
+            if d[k] > 1e-14 * big {
+                1.0 / d[k]
+            } else {
+                1.0 / big
+            }
+        })
         .collect()
 }
 
@@ -198,7 +201,7 @@ pub fn minimise(
         products += cg.iterations;
         let mut d = cg.x;
         let mut slope: f64 = d.iter().zip(&rhs).map(|(a, b)| -a * b).sum();
-        if !(slope < 0.0) || d.iter().all(|v| *v == 0.0) {
+        if slope.is_nan() || slope >= 0.0 || d.iter().all(|v| *v == 0.0) {
             // No descent from CG (negative curvature at once): preconditioned gradient.
             d = vec![0.0; rhs.len()];
             sector_precondition(model, free, &rhs, &mut d, &mut full, &mut full_out);
@@ -230,8 +233,8 @@ pub fn minimise(
                 // accept a step that does not raise F beyond that and shrinks the
                 // gradient.
                 let noise = noise_rel * ev.free_energy.abs().max(1.0);
-                let flat = evn.free_energy <= ev.free_energy + noise
-                    && norm_inf(&gn_trial, free) < gn;
+                let flat =
+                    evn.free_energy <= ev.free_energy + noise && norm_inf(&gn_trial, free) < gn;
                 if armijo || flat {
                     std::mem::swap(&mut x, &mut xn);
                     std::mem::swap(&mut g, &mut gn_trial);

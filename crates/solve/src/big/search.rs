@@ -131,9 +131,11 @@ impl<'a> SymmetricProbe<'a> {
         self.products += sol.products;
         if self.history.len() >= 4 {
             // Drop the temperature farthest from this one.
-            if let Some(far) = (0..self.history.len())
-                .max_by(|&i, &j| (self.history[i].0 - t).abs().total_cmp(&(self.history[j].0 - t).abs()))
-            {
+            if let Some(far) = (0..self.history.len()).max_by(|&i, &j| {
+                (self.history[i].0 - t)
+                    .abs()
+                    .total_cmp(&(self.history[j].0 - t).abs())
+            }) {
                 self.history.swap_remove(far);
             }
         }
@@ -176,7 +178,7 @@ impl<'a> SymmetricProbe<'a> {
                 ops.product(odd, v, out)
             };
             let mut pre = |v: &[f64], out: &mut [f64]| ops.precondition(odd, v, out);
-            lobpcg_lowest(&mut op, &metric, &mut pre, &start, 1e-12, 2000)
+            lobpcg_lowest(&mut op, &metric, &mut pre, &start, 1e-10, 2000)
         };
         self.products += products;
         if !eig.value.is_finite() {

@@ -160,8 +160,7 @@ impl<'a> SymmetricEngine<'a> {
             .map(|w| w.x.clone())
             .filter(|x| self.model.min_probability(x) > 0.0);
         if h != 0.0 {
-            let start =
-                warm_x.unwrap_or_else(|| product_state(&self.model, (h / t).tanh() * 0.5));
+            let start = warm_x.unwrap_or_else(|| product_state(&self.model, (h / t).tanh() * 0.5));
             let s = self.solve_with_restarts(start, h.signum() * 0.5)?;
             return Ok((s, Branch::Field, None));
         }
