@@ -226,9 +226,10 @@ fn csv_columns_of_the_contract() {
     assert!(lines[2].starts_with("pair,2,2.88539008"), "{text}");
 }
 
-/// A square lattice with a 20-site row of cells: with its rotated image it spans a
-/// 20×20 grid of positions, more than the big-level (orbit) representation holds.
-const LOW_SYMMETRY: &str = "name: long-row
+/// A square lattice whose level is a 25-site cross (two crossing rows of 13 cells): it
+/// spans a 13×13 grid of positions, more than the big-level (orbit) representation
+/// holds, so the engine refuses it.
+const LOW_SYMMETRY: &str = "name: cross
 dimension: 2
 vectors: [[1.0, 0.0], [0.0, 1.0]]
 basis: [{name: a}]
@@ -238,7 +239,7 @@ bonds:
   - {from: a, to: a, cell: [0, 1], coupling: J}
 clusters:
   block4:
-    block: [20, 1]
+    - [[a, [0, 6]], [a, [1, 6]], [a, [2, 6]], [a, [3, 6]], [a, [4, 6]], [a, [5, 6]], [a, [6, 0]], [a, [6, 1]], [a, [6, 2]], [a, [6, 3]], [a, [6, 4]], [a, [6, 5]], [a, [6, 6]], [a, [6, 7]], [a, [6, 8]], [a, [6, 9]], [a, [6, 10]], [a, [6, 11]], [a, [6, 12]], [a, [7, 6]], [a, [8, 6]], [a, [9, 6]], [a, [10, 6]], [a, [11, 6]], [a, [12, 6]]]
 ";
 
 #[test]

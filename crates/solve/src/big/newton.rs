@@ -65,42 +65,48 @@ fn norm_inf(g: &[f64], free: &[usize]) -> f64 {
     free.iter().map(|&k| g[k].abs()).fold(0.0, f64::max)
 }
 
-/// `out_s = H_ss v_s` on the free variables `free` (`full`, `full_out`: scratch).
-pub fn sector_product(
-    model: &mut Model,
+/// `out_s = (A v)_s` for a full-space map `apply` restricted to the free variables
+/// `free` (`full`, `full_out`: scratch of the full length).
+fn sector_apply<'a>(
+    model: &mut Model<'a>,
     free: &[usize],
     v: &[f64],
     out: &mut [f64],
-    full: &mut [f64],
-    full_out: &mut [f64],
+    (full, full_out): (&mut [f64], &mut [f64]),
+    apply: fn(&mut Model<'a>, &[f64], &mut [f64]),
 ) {
     full.iter_mut().for_each(|e| *e = 0.0);
     for (i, &k) in free.iter().enumerate() {
         full[k] = v[i];
     }
-    model.hessian_vector(full, full_out);
+    apply(model, full, full_out);
     for (i, &k) in free.iter().enumerate() {
         out[i] = full_out[k];
     }
 }
 
-/// `out_s = (M⁻¹)_ss v_s`, the preconditioner of [`Model::precondition`] on `free`.
-pub fn sector_precondition(
-    model: &mut Model,
+/// `out_s = H_ss v_s` on the free variables `free` (`full`, `full_out`: scratch).
+pub fn sector_product<'a>(
+    model: &mut Model<'a>,
     free: &[usize],
     v: &[f64],
     out: &mut [f64],
     full: &mut [f64],
     full_out: &mut [f64],
 ) {
-    full.iter_mut().for_each(|e| *e = 0.0);
-    for (i, &k) in free.iter().enumerate() {
-        full[k] = v[i];
-    }
-    model.precondition(full, full_out);
-    for (i, &k) in free.iter().enumerate() {
-        out[i] = full_out[k];
-    }
+    sector_apply(model, free, v, out, (full, full_out), Model::hessian_vector);
+}
+
+/// `out_s = (M⁻¹)_ss v_s`, the preconditioner of [`Model::precondition`] on `free`.
+pub fn sector_precondition<'a>(
+    model: &mut Model<'a>,
+    free: &[usize],
+    v: &[f64],
+    out: &mut [f64],
+    full: &mut [f64],
+    full_out: &mut [f64],
+) {
+    sector_apply(model, free, v, out, (full, full_out), Model::precondition);
 }
 
 /// Products with H and M⁻¹ on a sector, sharing one model.
@@ -178,7 +184,10 @@ pub fn minimise(
         } else {
             stalled += 1;
         }
-        if gn <= options.tolerance || (stalled >= 3 && gn < STAGNATION_FLOOR) {
+        if gn <= options.tolerance
+            || (stalled >= 3 && gn < STAGNATION_FLOOR)
+            || (stalled >= 2 && gn < 1e-9)
+        {
             return Ok(Solved {
                 x,
                 eval: ev,

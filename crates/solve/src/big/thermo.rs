@@ -131,9 +131,11 @@ impl<'a> SymmetricEngine<'a> {
         let ops = SectorOps::new(&mut self.model);
         let mut op = |a: &[f64], out: &mut [f64]| ops.product(free, a, out);
         let mut pre = |a: &[f64], out: &mut [f64]| ops.precondition(free, a, out);
-        let cg = pcg(&mut op, &mut pre, &rhs, None, 1e-13, 20_000);
+        // bᵀy converges as the square of the residual: 10⁻⁷ gives ~10⁻¹³ relative. The
+        // products carry rounding, so CG may stall short of it: capped, then checked.
+        let cg = pcg(&mut op, &mut pre, &rhs, None, 1e-7, 3000);
         drop(ops);
-        if cg.negative_curvature || cg.relative_residual > 1e-8 {
+        if cg.negative_curvature || cg.relative_residual > 1e-5 {
             return Err(SolveError::TcSearch {
                 level: self.model.level().name.clone(),
                 detail: format!(
