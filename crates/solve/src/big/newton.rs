@@ -177,6 +177,8 @@ pub fn minimise(
     let mut gn = norm_inf(&g, free);
     let mut eta_factor = 1.0;
     let noise_rel = f_noise(model.level().max_cluster_sites);
+    // The gradient of big clusters has a rounding floor ~10³ times F's relative one.
+    let tolerance = options.tolerance.max(1e3 * noise_rel);
     for it in 0..options.max_iterations {
         if gn < 0.9 * best {
             best = gn;
@@ -184,9 +186,9 @@ pub fn minimise(
         } else {
             stalled += 1;
         }
-        if gn <= options.tolerance
+        if gn <= tolerance
             || (stalled >= 3 && gn < STAGNATION_FLOOR)
-            || (stalled >= 2 && gn < 1e-9)
+            || (stalled >= 2 && gn < 10.0 * tolerance)
         {
             return Ok(Solved {
                 x,
@@ -282,7 +284,7 @@ pub fn minimise(
             1.0
         };
     }
-    if gn <= options.tolerance {
+    if gn <= tolerance {
         return Ok(Solved {
             x,
             eval: ev,

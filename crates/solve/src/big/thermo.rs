@@ -55,6 +55,8 @@ pub fn observables_symmetric(
 /// Work buffers of one level, reused along a sweep.
 pub struct SymmetricEngine<'a> {
     model: Model<'a>,
+    /// The state before the warm one, for a linear predictor along a sweep.
+    previous: Option<(f64, f64, Vec<f64>)>,
     all: Vec<usize>,
     even: Vec<usize>,
     odd: Vec<usize>,
@@ -77,6 +79,7 @@ impl<'a> SymmetricEngine<'a> {
     pub fn new(level: &'a CompactLevel) -> SymmetricEngine<'a> {
         SymmetricEngine {
             model: Model::new(level, 1.0, 0.0),
+            previous: None,
             all: (0..level.len()).collect(),
             even: (0..level.len()).filter(|&k| !level.is_odd(k)).collect(),
             odd: (0..level.len()).filter(|&k| level.is_odd(k)).collect(),
@@ -133,16 +136,26 @@ impl<'a> SymmetricEngine<'a> {
         let mut pre = |a: &[f64], out: &mut [f64]| ops.precondition(free, a, out);
         // bᵀy converges as the square of the residual: 10⁻⁷ gives ~10⁻¹³ relative. The
         // products carry rounding, so CG may stall short of it: capped, then checked.
-        let cg = pcg(&mut op, &mut pre, &rhs, None, 1e-7, 3000);
+        let cg = pcg(&mut op, &mut pre, &rhs, None, 1e-7, 6000);
         drop(ops);
-        if cg.negative_curvature || cg.relative_residual > 1e-5 {
+        let (t, h) = (self.model.temperature(), self.model.field());
+        let name = self.model.level().name.clone();
+        if cg.negative_curvature {
             return Err(SolveError::TcSearch {
-                level: self.model.level().name.clone(),
+                level: name,
                 detail: format!(
-                    "the Hessian is singular or indefinite at T = {}, h = {} (a critical point): C and χ diverge there",
-                    self.model.temperature(),
-                    self.model.field()
+                    "the Hessian is not positive definite at T = {t}, h = {h} (a critical point or an unstable state): C and χ diverge there"
                 ),
+            });
+        }
+        // bᵀy errs by about the squared residual: 10⁻⁴ still gives χ, C to ~10⁻⁸.
+        if cg.relative_residual > 1e-4 {
+            return Err(SolveError::LinearSolve {
+                level: name,
+                t,
+                h,
+                products: cg.iterations,
+                residual: cg.relative_residual,
             });
         }
         Ok(rhs.iter().zip(&cg.x).map(|(a, b)| a * b).sum())
@@ -159,7 +172,7 @@ impl<'a> SymmetricEngine<'a> {
         self.model.set(t, h);
         let warm_x = warm
             .filter(|w| w.x.len() == level.len())
-            .map(|w| w.x.clone())
+            .map(|w| self.predict(w, t, h))
             .filter(|x| self.model.min_probability(x) > 0.0);
         if h != 0.0 {
             let start = warm_x.unwrap_or_else(|| product_state(&self.model, (h / t).tanh() * 0.5));
@@ -221,6 +234,37 @@ impl<'a> SymmetricEngine<'a> {
         Ok((ord, Branch::Ordered, None))
     }
 
+    /// The warm start at (t, h): `warm` extrapolated linearly from the state solved
+    /// before it, when that one lies on the same line of the sweep, on the same branch
+    /// side (same sign of m) and the result stays feasible.
+    fn predict(&mut self, warm: &SymmetricState, t: f64, h: f64) -> Vec<f64> {
+        let level = self.model.level();
+        if let Some((tp, hp, xp)) = &self.previous {
+            let (dt, dh) = (warm.t - tp, warm.h - hp);
+            let along = if dt != 0.0 && dh == 0.0 && h == warm.h {
+                Some((t - warm.t) / dt)
+            } else if dh != 0.0 && dt == 0.0 && t == warm.t {
+                Some((h - warm.h) / dh)
+            } else {
+                None
+            };
+            let same_side = magnetisation(level, xp) * magnetisation(level, &warm.x) > 0.0
+                || (magnetisation(level, xp) == 0.0 && magnetisation(level, &warm.x) == 0.0);
+            if let Some(s) = along.filter(|s| s.abs() <= 2.0 && same_side) {
+                let x: Vec<f64> = warm
+                    .x
+                    .iter()
+                    .zip(xp)
+                    .map(|(w, p)| w + s * (w - p))
+                    .collect();
+                if self.model.min_probability(&x) > 0.0 {
+                    return x;
+                }
+            }
+        }
+        warm.x.clone()
+    }
+
     /// Observables at (t, h), warm-started from `warm`.
     pub fn observables(
         &mut self,
@@ -233,6 +277,7 @@ impl<'a> SymmetricEngine<'a> {
         }
         let level = self.model.level();
         let (sol, branch, mode) = self.state(t, h, warm)?;
+        self.previous = warm.map(|w| (w.t, w.h, w.x.clone()));
         let x = sol.x;
         let n = level.len();
         let mut grad_s = vec![0.0; n];
