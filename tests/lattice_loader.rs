@@ -348,17 +348,17 @@ bad!(
         "no basis site named `b` (known: a)"
     ]
 );
-// The file's shape has 17 sites, one more than MAX_CLUSTER_SITES = 16.
+// The file's shape has 26 sites, one more than MAX_CLUSTER_SITES = 25.
 bad!(
     cluster_over_limit,
     "cluster_over_limit.yaml",
     LatticeError::ClusterOverLimit {
-        sites: 17,
+        sites: 26,
         limit: MAX_CLUSTER_SITES,
         ..
     },
     10,
-    ["clusters.long[0]", "17 sites", "limit of 16"]
+    ["clusters.long[0]", "26 sites", "limit of 25"]
 );
 bad!(
     block_huge,
@@ -372,7 +372,7 @@ bad!(
     [
         "clusters.enormous.block",
         "10000 sites",
-        "limit of 16",
+        "limit of 25",
         "smaller shape or block"
     ]
 );

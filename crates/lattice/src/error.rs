@@ -47,7 +47,7 @@ pub enum LatticeError {
         detail: String,
     },
     /// A maximal cluster larger than the engine can hold.
-    #[error("level `{level}`: a maximal cluster has {sites} sites, more than the limit of {limit}; choose a smaller cluster")]
+    #[error("level `{level}`: a maximal cluster has {sites} sites, more than the limit of {limit} here; choose a smaller cluster (levels of up to 25 sites are searched for Tc on point-group orbits by `tc` and `ladder`)")]
     ClusterTooLarge {
         /// Level name.
         level: String,
@@ -55,6 +55,14 @@ pub enum LatticeError {
         sites: usize,
         /// The engine's limit.
         limit: usize,
+    },
+    /// A level the compact (orbit-reduced) representation cannot hold.
+    #[error("level `{level}`: {detail}")]
+    CompactLimit {
+        /// Level name.
+        level: String,
+        /// What exceeds the representation and what to do.
+        detail: String,
     },
     /// A level name that is reserved or already taken.
     #[error(

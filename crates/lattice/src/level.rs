@@ -24,8 +24,28 @@ use crate::cluster::Cluster;
 use crate::error::LatticeError;
 use crate::model::{Cell, Lattice};
 
-/// Largest maximal cluster the engine accepts (its cluster distribution has 2^n states).
-pub const MAX_CLUSTER_SITES: usize = 16;
+/// Largest maximal cluster any level may have (its cluster distribution has 2^n states;
+/// 2^25 f64 values are 256 MiB). Levels above [`MAX_MATERIALISED_SITES`] exist only in the
+/// compact, orbit-reduced form of [`crate::compact::CompactLevel`].
+pub const MAX_CLUSTER_SITES: usize = 25;
+
+/// Largest maximal cluster for which [`Level::build`] lists every correlation variable
+/// as a [`Cluster`] (the 4×4 block: 57,856 of them; the 5×5 block would need 31.5
+/// million, so it is built only as a [`crate::compact::CompactLevel`]).
+pub const MAX_MATERIALISED_SITES: usize = 16;
+
+/// A level's geometry without its correlation variables: the maximal clusters and the
+/// region orbits with their Kikuchi coefficients, largest first. Cheap at any size.
+#[derive(Debug, Clone)]
+pub struct Skeleton {
+    /// Level name.
+    pub name: String,
+    /// Maximal clusters, one canonical representative per translation orbit.
+    pub maximal: Vec<Cluster>,
+    /// Region orbits (maximal clusters and their intersections), largest first, with
+    /// their Kikuchi coefficients per unit cell (zero included).
+    pub regions: Vec<(Cluster, i64)>,
+}
 
 /// One region orbit of a level.
 #[derive(Debug, Clone)]
@@ -178,8 +198,9 @@ impl Level {
         Ok(clusters)
     }
 
-    /// Build level `name` of `lattice`.
-    pub fn build(lattice: &Lattice, name: &str) -> Result<Level, LatticeError> {
+    /// The maximal clusters and regions of level `name`, with Möbius-inverted Kikuchi
+    /// coefficients, without listing any correlation variable.
+    pub fn skeleton(lattice: &Lattice, name: &str) -> Result<Skeleton, LatticeError> {
         let maximal = Self::maximal_clusters(lattice, name)?;
         if let Some(big) = maximal.iter().find(|c| c.len() > MAX_CLUSTER_SITES) {
             return Err(LatticeError::ClusterTooLarge {
@@ -223,6 +244,29 @@ impl Level {
             }
             coeff.push(a);
         }
+        Ok(Skeleton {
+            name: name.to_string(),
+            maximal,
+            regions: orbits.into_iter().zip(coeff).collect(),
+        })
+    }
+
+    /// Build level `name` of `lattice`, every correlation variable listed. Levels whose
+    /// clusters exceed [`MAX_MATERIALISED_SITES`] are refused
+    /// ([`LatticeError::ClusterTooLarge`]); build them as a
+    /// [`crate::compact::CompactLevel`].
+    pub fn build(lattice: &Lattice, name: &str) -> Result<Level, LatticeError> {
+        let Skeleton {
+            maximal, regions, ..
+        } = Self::skeleton(lattice, name)?;
+        if let Some(big) = maximal.iter().find(|c| c.len() > MAX_MATERIALISED_SITES) {
+            return Err(LatticeError::ClusterTooLarge {
+                level: name.to_string(),
+                sites: big.len(),
+                limit: MAX_MATERIALISED_SITES,
+            });
+        }
+        let (orbits, coeff): (Vec<Cluster>, Vec<i64>) = regions.into_iter().unzip();
         // Correlation variables: every non-empty subset of a maximal cluster.
         let mut var_set: BTreeSet<Cluster> = BTreeSet::new();
         for m in &maximal {

@@ -20,6 +20,7 @@
 
 pub mod check;
 pub mod cluster;
+pub mod compact;
 pub mod error;
 pub mod level;
 pub mod model;
@@ -31,7 +32,8 @@ mod testutil;
 pub mod torus;
 
 pub use cluster::Cluster;
+pub use compact::{CompactLevel, CompactRegion};
 pub use error::LatticeError;
-pub use level::{BondTerm, Level, Region, MAX_CLUSTER_SITES};
+pub use level::{BondTerm, Level, Region, Skeleton, MAX_CLUSTER_SITES, MAX_MATERIALISED_SITES};
 pub use model::{Bond, Cell, Lattice, LevelSpec, Neighbour, Reference, Site};
 pub use torus::Torus;

@@ -135,7 +135,27 @@ pub fn point_group(lattice: &Lattice) -> Vec<SiteMap> {
         })
         .collect();
     let mut found: BTreeSet<FoundOp> = BTreeSet::new();
-    for rot in candidate_rotations(lattice.dimension()) {
+    // One site per cell: R must map every bond vector onto a bond vector with the same
+    // coupling, a test that discards almost every candidate before any search.
+    let vectors: BTreeSet<(Cell, u64)> = lattice
+        .bonds()
+        .iter()
+        .flat_map(|b| {
+            let j = b.j.to_bits();
+            [(b.cell, j), ([-b.cell[0], -b.cell[1], -b.cell[2]], j)]
+        })
+        .collect();
+    let keeps_bonds = |rot: &[[i32; 3]; 3]| {
+        nb > 1
+            || vectors.iter().all(|&(c, j)| {
+                let rc = [0, 1, 2].map(|i| rot[i][0] * c[0] + rot[i][1] * c[1] + rot[i][2] * c[2]);
+                vectors.contains(&(rc, j))
+            })
+    };
+    for rot in candidate_rotations(lattice.dimension())
+        .into_iter()
+        .filter(|r| keeps_bonds(r))
+    {
         for first in 0..nb {
             let mut map = SiteMap {
                 rot,
@@ -208,15 +228,50 @@ fn search(
 
 /// The operations of `ops` that map the level's set of maximal clusters onto itself.
 pub fn level_group(level: &Level, ops: &[SiteMap]) -> Vec<SiteMap> {
-    let maximal: BTreeSet<&Cluster> = level.maximal.iter().collect();
+    group_of(&level.maximal, ops)
+}
+
+/// The operations of `ops` that map the set of `maximal` clusters onto itself.
+pub fn group_of(maximal: &[Cluster], ops: &[SiteMap]) -> Vec<SiteMap> {
+    let set: BTreeSet<&Cluster> = maximal.iter().collect();
     ops.iter()
-        .filter(|op| level.maximal.iter().all(|m| maximal.contains(&op.image(m))))
+        .filter(|op| maximal.iter().all(|m| set.contains(&op.image(m))))
         .cloned()
         .collect()
 }
 
+/// `a ∘ b`: the map `x ↦ a(b(x))`.
+fn compose(a: &SiteMap, b: &SiteMap) -> SiteMap {
+    let mut rot = [[0i32; 3]; 3];
+    for (i, row) in rot.iter_mut().enumerate() {
+        for (j, e) in row.iter_mut().enumerate() {
+            *e = (0..3).map(|k| a.rot[i][k] * b.rot[k][j]).sum();
+        }
+    }
+    let perm: Vec<usize> = b.perm.iter().map(|&p| a.perm[p]).collect();
+    let shift: Vec<Cell> = b
+        .shift
+        .iter()
+        .zip(&b.perm)
+        .map(|(s, &p)| {
+            let t = a.shift[p];
+            [0, 1, 2].map(|i| a.rot[i][0] * s[0] + a.rot[i][1] * s[1] + a.rot[i][2] * s[2] + t[i])
+        })
+        .collect();
+    SiteMap { rot, perm, shift }
+}
+
+/// Whether `ops` is closed under composition (a group, as maps of sites).
+fn is_group(ops: &[SiteMap]) -> bool {
+    let set: std::collections::HashSet<&SiteMap> = ops.iter().collect();
+    ops.iter()
+        .all(|a| ops.iter().all(|b| set.contains(&compose(a, b))))
+}
+
 /// Orbit id of every correlation variable under `ops` (ids dense, in order of first
-/// appearance).
+/// appearance). When `ops` is a group, each orbit is `{g v : g ∈ ops}` and is listed
+/// once from its first variable (orbits × |ops| images); otherwise the orbits of the
+/// group `ops` generates are found by union–find over every variable and operation.
 pub fn variable_orbits(level: &Level, ops: &[SiteMap]) -> Vec<usize> {
     let index: HashMap<&Cluster, usize> = level
         .variables
@@ -225,6 +280,23 @@ pub fn variable_orbits(level: &Level, ops: &[SiteMap]) -> Vec<usize> {
         .map(|(i, c)| (c, i))
         .collect();
     let n = level.variables.len();
+    if is_group(ops) {
+        let mut out = vec![usize::MAX; n];
+        let mut next = 0;
+        for (v, c) in level.variables.iter().enumerate() {
+            if out[v] != usize::MAX {
+                continue;
+            }
+            out[v] = next;
+            for op in ops {
+                if let Some(&w) = index.get(&op.image(c)) {
+                    out[w] = next;
+                }
+            }
+            next += 1;
+        }
+        return out;
+    }
     let mut root: Vec<usize> = (0..n).collect();
     fn find(root: &mut [usize], mut v: usize) -> usize {
         while root[v] != v {

@@ -74,6 +74,20 @@ pub enum SolveError {
         /// Why, and where the limit lies.
         detail: String,
     },
+    /// A conjugate-gradient solve (χ and C of big levels) stopped short of its tolerance.
+    #[error("level `{level}` at T = {t}, h = {h}: the linear solve for C and χ stopped at relative residual {residual:.1e} after {products} Hessian products; the big-level preconditioner is weak deep in the ordered phase, try a temperature nearer Tc")]
+    LinearSolve {
+        /// Level name.
+        level: String,
+        /// Temperature.
+        t: f64,
+        /// Field.
+        h: f64,
+        /// Products with the Hessian spent.
+        products: usize,
+        /// Relative residual reached.
+        residual: f64,
+    },
     /// The Tc search failed.
     #[error("level `{level}`: Tc search failed: {detail}")]
     TcSearch {

@@ -16,6 +16,7 @@ pub mod equilibrium;
 pub mod error;
 pub mod extrapolate;
 pub mod functional;
+pub mod krylov;
 pub mod linalg;
 pub mod ordering;
 pub mod phase;

@@ -196,18 +196,28 @@ fn pair_level_amplitude_is_half_tc_on_the_square_lattice() {
 }
 
 #[test]
-fn a_big_level_with_little_symmetry_is_refused_up_front() {
-    // Three different couplings leave the triangular lattice only the inversion: the
-    // 4×4 block's orbits exceed the big-level limit, refused before any matrix exists.
-    let l = inline(
-        "name: tri3\ndimension: 2\nvectors: [[1.0, 0.0], [0.5, 0.866]]\nbasis: [{name: a}]\n\
-         couplings: {J1: 1.0, J2: 0.9, J3: 0.8}\nbonds:\n  - {from: a, to: a, cell: [1, 0], coupling: J1}\n  \
-         - {from: a, to: a, cell: [0, 1], coupling: J2}\n  - {from: a, to: a, cell: [-1, 1], coupling: J3}\n\
-         clusters:\n  block4:\n    block: [4, 4]\n",
+fn a_big_level_too_spread_out_is_refused_up_front() {
+    // A 25-site cross (two crossing rows of 13 cells) spans a 13×13 grid of positions,
+    // more than the big-level (orbit) representation holds: refused before any work.
+    let cross: Vec<String> = (0..13)
+        .map(|i| format!("[a, [{i}, 6]]"))
+        .chain(
+            (0..13)
+                .filter(|&j| j != 6)
+                .map(|j| format!("[a, [6, {j}]]")),
+        )
+        .collect();
+    let l = inline(&format!(
+        "name: sq\ndimension: 2\nvectors: [[1.0, 0.0], [0.0, 1.0]]\nbasis: [{{name: a}}]\n\
+         couplings: {{J: 1.0}}\nbonds:\n  - {{from: a, to: a, cell: [1, 0], coupling: J}}\n  \
+         - {{from: a, to: a, cell: [0, 1], coupling: J}}\nclusters:\n  cross:\n    - [{}]\n",
+        cross.join(", ")
+    ));
+    let e = rungs_solve::big::compact_level(&l, "cross").unwrap_err();
+    assert!(
+        matches!(e, rungs_solve::SolveError::TcSearch { .. }) && e.to_string().contains("limit"),
+        "{e}"
     );
-    let lv = level(&l, "block4");
-    let e = critical_temperature(&l, &lv, TcOptions::default()).unwrap_err();
-    assert!(matches!(e, rungs_solve::SolveError::TooLarge { .. }), "{e}");
 }
 
 /// Long validation (about a minute in release; see docs/validation.md):

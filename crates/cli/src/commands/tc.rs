@@ -22,7 +22,7 @@
 use std::time::Instant;
 
 use rayon::prelude::*;
-use rungs_lattice::{Lattice, LatticeError, Level};
+use rungs_lattice::{CompactLevel, Lattice, LatticeError, Level, MAX_MATERIALISED_SITES};
 use rungs_reference::closed::ClosedForm;
 use rungs_solve::functional::check_size;
 use rungs_solve::{critical_temperature, CriticalPoint, SolveError, TcOptions};
@@ -204,6 +204,9 @@ pub struct Prepared {
     pub seconds: f64,
     /// The level, or why it cannot be built (cluster over the site limit).
     pub level: Result<Level, String>,
+    /// Levels whose clusters exceed `MAX_MATERIALISED_SITES` (e.g. the 5×5 block),
+    /// built only on point-group orbits.
+    pub compact: Option<CompactLevel>,
     /// Whether it is too large for the dense engine, so that its Tc is searched on
     /// point-group orbits (uniform order only, slow).
     pub big: bool,
@@ -213,6 +216,21 @@ pub struct Prepared {
 pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, CliError> {
     let start = Instant::now();
     let max_cluster_sites = Level::max_cluster_sites_of(lattice, name)?;
+    if max_cluster_sites > MAX_MATERIALISED_SITES {
+        let (level, compact) = match CompactLevel::build(lattice, name) {
+            Ok(c) => (Err("built on point-group orbits only".to_string()), Some(c)),
+            Err(e @ LatticeError::CompactLimit { .. }) => (Err(e.to_string()), None),
+            Err(e) => return Err(e.into()),
+        };
+        return Ok(Prepared {
+            name: name.to_string(),
+            max_cluster_sites,
+            seconds: start.elapsed().as_secs_f64(),
+            level,
+            compact,
+            big: true,
+        });
+    }
     let level = match Level::build(lattice, name) {
         Ok(level) => Ok(level),
         Err(e @ LatticeError::ClusterTooLarge { .. }) => Err(e.to_string()),
@@ -224,6 +242,7 @@ pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, CliError> {
         max_cluster_sites,
         seconds: start.elapsed().as_secs_f64(),
         level,
+        compact: None,
         big,
     })
 }
@@ -234,20 +253,24 @@ pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, CliError> {
 /// the other levels still print.
 pub fn search(lattice: &Lattice, p: &Prepared, start_below: Option<f64>, field: f64) -> LevelTc {
     let start = Instant::now();
-    let outcome = match &p.level {
-        Err(reason) => TcOutcome::Refused(reason.clone()),
-        Ok(level) => {
-            let options = TcOptions {
-                start_below,
-                field,
-                ..TcOptions::default()
-            };
-            match critical_temperature(lattice, level, options) {
+    let options = TcOptions {
+        start_below,
+        field,
+        ..TcOptions::default()
+    };
+    let outcome = match (&p.level, &p.compact) {
+        (_, Some(compact)) => {
+            match rungs_solve::big::critical_temperature_compact(lattice, compact, options) {
                 Ok(cp) => TcOutcome::Searched(cp),
-                Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
                 Err(e) => TcOutcome::Failed(e.to_string()),
             }
         }
+        (Err(reason), None) => TcOutcome::Refused(reason.clone()),
+        (Ok(level), None) => match critical_temperature(lattice, level, options) {
+            Ok(cp) => TcOutcome::Searched(cp),
+            Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
+            Err(e) => TcOutcome::Failed(e.to_string()),
+        },
     };
     LevelTc {
         level: p.name.clone(),

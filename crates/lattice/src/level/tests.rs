@@ -219,7 +219,7 @@ fn oversized_cluster_is_refused_before_building() {
         e,
         LatticeError::ClusterTooLarge {
             sites: 25,
-            limit: MAX_CLUSTER_SITES,
+            limit: crate::level::MAX_MATERIALISED_SITES,
             ..
         }
     ));

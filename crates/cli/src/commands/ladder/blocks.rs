@@ -132,6 +132,19 @@ mod tests {
         assert_eq!(shapes(1, 1, 5), vec![[3, 1, 1], [4, 1, 1], [5, 1, 1]]);
         // Two sites per cell (honeycomb): 1×2 cells = 4 sites, 2×2 = 8, 2×3 = 12.
         assert_eq!(shapes(2, 2, 12), vec![[1, 2, 1], [2, 2, 1], [2, 3, 1]]);
+        // --up-to 25 on the square lattice reaches the 5×5 block (25 sites, the limit).
+        assert_eq!(
+            shapes(2, 1, 25),
+            vec![
+                [2, 2, 1],
+                [2, 3, 1],
+                [3, 3, 1],
+                [3, 4, 1],
+                [4, 4, 1],
+                [4, 5, 1],
+                [5, 5, 1]
+            ]
+        );
         assert_eq!(name(2, [2, 3, 1]), "block2x3");
         assert_eq!(name(1, [5, 1, 1]), "block5");
     }

@@ -1,5 +1,6 @@
-//! Levels too large for the dense engine on translation classes (e.g. the square 4×4
-//! block: 57,856 correlation variables), solved on point-group orbits instead.
+//! The first big-level path, kept beside the matrix-free one until the two agree
+//! everywhere: dense orbit-reduced Hessians (e.g. the square 4×4 block: 57,856
+//! correlation variables, 7,625 orbits), assembled symmetrically and factorised.
 //!
 //! Three ingredients make a 16-site level fit on a laptop:
 //!
@@ -312,7 +313,7 @@ impl CostFunction for GRoot<'_, '_> {
 /// Tc of a level too large for the dense engine, on point-group orbits. `start_below`
 /// is a temperature believed to lie above this level's Tc (e.g. the Tc of the next
 /// smaller cluster); without it the search starts at the mean-field Tc.
-pub fn critical_temperature_big(
+pub fn critical_temperature_orbits_dense(
     lattice: &Lattice,
     level: &Level,
     options: TcOptions,
