@@ -97,7 +97,7 @@ impl Dd {
     }
 
     /// `self / o`.
-    pub fn div(self, o: Dd) -> Dd {
+    pub fn quotient(self, o: Dd) -> Dd {
         self * o.recip()
     }
 }
@@ -136,7 +136,7 @@ pub fn inverse_form(h: &[Dd], m: usize, v: &[f64]) -> Option<f64> {
         for k in 0..i {
             s = s - l[i + m * k] * y[k];
         }
-        y[i] = s.div(l[i + m * i]);
+        y[i] = s.quotient(l[i + m * i]);
         total += y[i] * y[i];
     }
     Some(total.to_f64())

@@ -167,7 +167,7 @@ fn has_interior_site(lattice: &Lattice, level: &Level) -> bool {
 
 /// Whether the ordering's wavevector is commensurate with a cell of n cells.
 fn fits(o: &Ordering, n: [usize; 3], d: usize) -> bool {
-    (0..d).all(|k| n[k] % o.fractions[k].1 == 0)
+    (0..d).all(|k| n[k].is_multiple_of(o.fractions[k].1))
 }
 
 /// The ordering's pattern on a cell of n primitive cells (n a multiple of its own).
@@ -372,7 +372,7 @@ impl<'c> PhaseFollower<'c> {
             .iter()
             .map(|q| qh.lowest_value(q))
             .fold(f64::INFINITY, f64::min);
-        let stable = !(lowest < -STABILITY_NOISE);
+        let stable = lowest >= -STABILITY_NOISE || lowest.is_nan();
         let mut notes = Vec::new();
         if lowest.abs() <= STABILITY_NOISE {
             notes.push(format!(

@@ -39,6 +39,12 @@ pub fn phase(q: &Wavevector, t: &Cell) -> Complex<f64> {
     Complex::new(a.cos(), a.sin())
 }
 
+/// Whether `x` (reduced modulo 1) is within 10⁻⁹ of an integer.
+pub fn near_integer(x: f64) -> bool {
+    let d = x.rem_euclid(1.0);
+    !(1e-9..=1.0 - 1e-9).contains(&d)
+}
+
 /// Whether every `e^{2πi q·t}` is real (every component of q is 0 or 1/2).
 pub fn is_real(q: &Wavevector) -> bool {
     q.iter().all(|&c| {
@@ -433,8 +439,7 @@ fn fixes(op: &SiteMap, q: &Wavevector) -> bool {
         let d = q[0] * (img[0] - e[0]) as f64
             + q[1] * (img[1] - e[1]) as f64
             + q[2] * (img[2] - e[2]) as f64;
-        let d = d.rem_euclid(1.0);
-        d < 1e-9 || d > 1.0 - 1e-9
+        near_integer(d)
     })
 }
 

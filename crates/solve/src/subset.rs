@@ -78,7 +78,7 @@ pub fn mobius_superset<T: Scalar>(f: &mut [T]) {
 /// `(−1)^{popcount(k)}`.
 #[inline]
 pub fn parity_sign(k: usize) -> f64 {
-    if k.count_ones() % 2 == 0 {
+    if k.count_ones().is_multiple_of(2) {
         1.0
     } else {
         -1.0

@@ -147,10 +147,7 @@ fn canonical(q: &Wavevector, dimension: usize) -> Wavevector {
 /// Whether p and q are the same point of the zone, up to q → −q.
 fn same_q(p: &Wavevector, q: &Wavevector, dimension: usize) -> bool {
     let eq = |a: &Wavevector, b: &Wavevector| {
-        (0..dimension).all(|k| {
-            let d = (a[k] - b[k]).rem_euclid(1.0);
-            d < 1e-9 || d > 1.0 - 1e-9
-        })
+        (0..dimension).all(|k| crate::qspace::near_integer(a[k] - b[k]))
     };
     eq(p, q) || eq(p, &q.map(|v| -v))
 }
@@ -824,10 +821,7 @@ fn star_under(ops: &[symmetry::SiteMap], q: &Wavevector, d: usize) -> Vec<Waveve
         }
         let p = canonical(&p, d);
         let eq = |a: &Wavevector, b: &Wavevector| {
-            (0..d).all(|k| {
-                let x = (a[k] - b[k]).rem_euclid(1.0);
-                x < 1e-9 || x > 1.0 - 1e-9
-            })
+            (0..d).all(|k| crate::qspace::near_integer(a[k] - b[k]))
         };
         if !out.iter().any(|o| eq(o, &p)) {
             out.push(p);
@@ -844,10 +838,8 @@ fn has_cubic_invariant(star: &[Wavevector], d: usize) -> bool {
     for a in &all {
         for b in &all {
             for c in &all {
-                if (0..d).all(|k| {
-                    let s = (a[k] + b[k] + c[k]).rem_euclid(1.0);
-                    s < 1e-9 || s > 1.0 - 1e-9
-                }) && !(0..d).all(|k| a[k].abs() < 1e-12)
+                if (0..d).all(|k| crate::qspace::near_integer(a[k] + b[k] + c[k]))
+                    && !(0..d).all(|k| a[k].abs() < 1e-12)
                 {
                     return true;
                 }
@@ -921,12 +913,11 @@ mod tests {
     fn inverse_of_cell_maps() {
         let m = [[0, 1, 0], [-1, 0, 0], [0, 0, 1]];
         let inv = inverse3(&m).unwrap();
-        for i in 0..3 {
-            for j in 0..3 {
-                let p: i32 = (0..3).map(|k| m[i][k] * inv[k][j]).sum();
-                assert_eq!(p, i32::from(i == j));
-            }
-        }
+        // (M M⁻¹)_ij = Σ_k M_ik M⁻¹_kj
+        let product: Vec<i32> = (0..9)
+            .map(|ij| (0..3).map(|k| m[ij / 3][k] * inv[k][ij % 3]).sum())
+            .collect();
+        assert_eq!(product, vec![1, 0, 0, 0, 1, 0, 0, 0, 1]);
     }
 
     #[test]

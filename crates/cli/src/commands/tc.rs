@@ -162,7 +162,7 @@ pub fn sort_levels(lattice: &Lattice, names: Vec<String>) -> Result<Vec<String>,
 #[derive(Debug, Clone)]
 pub enum TcOutcome {
     /// The search ran; `tc` is `None` when no transition was found.
-    Searched(CriticalPoint),
+    Searched(Box<CriticalPoint>),
     /// The engine refused the level (too large); the reason says why.
     Refused(String),
     /// The search failed (no convergence); the reason says where.
@@ -261,13 +261,13 @@ pub fn search(lattice: &Lattice, p: &Prepared, start_below: Option<f64>, field: 
     let outcome = match (&p.level, &p.compact) {
         (_, Some(compact)) => {
             match rungs_solve::big::critical_temperature_compact(lattice, compact, options) {
-                Ok(cp) => TcOutcome::Searched(cp),
+                Ok(cp) => TcOutcome::Searched(Box::new(cp)),
                 Err(e) => TcOutcome::Failed(e.to_string()),
             }
         }
         (Err(reason), None) => TcOutcome::Refused(reason.clone()),
         (Ok(level), None) => match critical_temperature(lattice, level, options) {
-            Ok(cp) => TcOutcome::Searched(cp),
+            Ok(cp) => TcOutcome::Searched(Box::new(cp)),
             Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
             Err(e) => TcOutcome::Failed(e.to_string()),
         },
