@@ -8,17 +8,17 @@
 //! cargo run --release --example validation
 //! ```
 //!
-//! The numbers are those of `rungs ladder LATTICE --mc` (the same code,
-//! `rungs::cli::commands::ladder::Ladder::compute`); a lattice without any reference gets
+//! The numbers are those of `rungs ladder LATTICE --mc` (the same code, [`rungs::ladder`]
+//! with a Monte Carlo reference); a lattice without any reference gets
 //! a seeded, reproducible Monte Carlo estimate. The file is written atomically.
 
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use std::time::{Instant, SystemTime, UNIX_EPOCH};
 
-use rungs::cli::commands::ladder::{Ladder, LadderOptions, ReferenceKind};
 use rungs::cli::output::write::write_atomic;
 use rungs::lattice::Lattice;
+use rungs::{Ladder, LadderOptions, ReferenceKind};
 
 /// The exact (2D) or best known (3D) susceptibility exponent of the Ising class, with its
 /// source.
@@ -202,14 +202,13 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     let options = LadderOptions {
         up_to: None,
         monte_carlo: true,
-        progress: false,
         field: 0.0,
     };
     let mut ladders = Vec::new();
     for file in &files {
         let t0 = Instant::now();
         let lattice = Lattice::from_file(file)?;
-        let ladder = Ladder::compute(&lattice, options)?;
+        let ladder = rungs::ladder(&lattice, options)?;
         eprintln!("{}: {:.1} s", file.display(), t0.elapsed().as_secs_f64());
         ladders.push((
             file.strip_prefix(&root).unwrap_or(file).to_path_buf(),

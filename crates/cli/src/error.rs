@@ -8,6 +8,9 @@
 use std::path::PathBuf;
 
 use rungs_lattice::LatticeError;
+use rungs_reference::ladder::LadderError;
+use rungs_solve::levels::LevelsError;
+use rungs_solve::sweep_report::SweepError;
 use thiserror::Error;
 
 /// Exit status for bad input (file, YAML, arguments).
@@ -53,6 +56,35 @@ pub enum CliError {
 impl From<LatticeError> for CliError {
     fn from(e: LatticeError) -> CliError {
         CliError::Lattice(Box::new(e))
+    }
+}
+
+impl From<LevelsError> for CliError {
+    fn from(e: LevelsError) -> CliError {
+        match e {
+            LevelsError::Lattice(e) => CliError::Lattice(e),
+            e => CliError::NotConverged(e.to_string()),
+        }
+    }
+}
+
+impl From<LadderError> for CliError {
+    fn from(e: LadderError) -> CliError {
+        match e {
+            LadderError::Lattice(e) => CliError::Lattice(e),
+            e if e.is_bad_input() => CliError::Usage(e.to_string()),
+            e => CliError::NotConverged(e.to_string()),
+        }
+    }
+}
+
+impl From<SweepError> for CliError {
+    fn from(e: SweepError) -> CliError {
+        match e {
+            SweepError::Lattice(e) => CliError::Lattice(e),
+            e if e.is_bad_input() => CliError::Usage(e.to_string()),
+            e => CliError::NotConverged(e.to_string()),
+        }
     }
 }
 

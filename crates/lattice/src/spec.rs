@@ -2,11 +2,11 @@
 //!
 //! Three steps, each in its own file:
 //!
-//! 1. [`yaml`]: text → a tree of nodes, each with its line and column (serde-saphyr's
+//! 1. `yaml`: text → a tree of nodes, each with its line and column (serde-saphyr's
 //!    `Spanned`);
-//! 2. [`schema`]: nodes → [`LatticeSpec`], plain located values; refuses unknown,
+//! 2. `schema`: nodes → `LatticeSpec`, plain located values; refuses unknown,
 //!    missing and repeated keys and values of the wrong kind;
-//! 3. [`build`] and [`levels`]: every rule of the lattice-file contract
+//! 3. `build` and `levels`: every rule of the lattice-file contract
 //!    (`docs/lattice-format.md`), then the resolved [`Lattice`].
 //!
 //! The first broken rule is returned as a [`LatticeError`] whose message names the file,

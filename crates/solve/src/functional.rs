@@ -975,7 +975,7 @@ impl<'a> Functional<'a> {
 
     /// The coordinates, in `basis` (no reference), of the state x of this functional:
     /// every variable is read from the distribution of the first active region holding
-    /// it (ξ_k = (W p)[k]; ζ_k = (Z↑ p_flip)[k]). Exact for a consistent state; precise
+    /// it (ξ_k = (W p)\[k\]; ζ_k = (Z↑ p_flip)\[k\]). Exact for a consistent state; precise
     /// as long as the region probabilities are.
     pub fn convert(&self, x: &[f64], basis: &Basis) -> Option<Vec<f64>> {
         let mut out = vec![f64::NAN; self.len()];

@@ -4,12 +4,18 @@
 //! * [`equilibrium`]: damped, shifted Newton that keeps every cluster probability > 0;
 //! * [`state`]: paramagnetic / ordered / in-field equilibrium at (T, h);
 //! * [`tc`]: the critical temperature from the odd-sector stability of the paramagnet;
-//! * [`thermo`]: per-site observables (m, U, F, S, C, χ) from a solved state.
+//! * [`thermo`]: per-site observables (m, U, F, S, C, χ) from a solved state;
+//! * [`levels`]: the critical point at several levels of one lattice (what `rungs tc`
+//!   and the ladder compute);
+//! * [`sweep`], [`sweep_report`]: thermodynamics along a path, and its reportable result
+//!   (the JSON of `rungs sweep`);
+//! * [`cautions`]: the caution notes those reports share.
 //!
 //! Conventions: spins ±1, `H = −Σ J s_i s_j − h Σ s_i`, k_B = 1; the functional is per
 //! unit cell, every reported observable per site.
 
 pub mod big;
+pub mod cautions;
 pub mod dd;
 pub mod disordered;
 pub mod equilibrium;
@@ -17,6 +23,7 @@ pub mod error;
 pub mod extrapolate;
 pub mod functional;
 pub mod krylov;
+pub mod levels;
 pub mod linalg;
 pub mod ordering;
 pub mod phase;
@@ -26,6 +33,7 @@ pub mod state;
 pub mod subset;
 pub mod supercell;
 pub mod sweep;
+pub mod sweep_report;
 pub mod tc;
 pub mod thermo;
 pub mod wht;

@@ -11,7 +11,7 @@
 //! superset Möbius     (M↑ f)[A]  = Σ_{B ⊇ A} (−1)^{|B∖A|} f[B]        (M↑ = (Z↑)⁻¹)
 //! ```
 //!
-//! The subset transforms are the algebra of the flip basis (see [`crate::basis`]): with
+//! The subset transforms are the algebra of the flip basis (see [`crate::functional::Basis`]): with
 //! `ζ_c` the probability that every site of c is flipped, the probability that exactly
 //! the set A is flipped is `(M↑ ζ)[A]` (inclusion–exclusion).
 

@@ -15,7 +15,7 @@ pub mod tc;
 
 use std::path::Path;
 
-use rungs_lattice::{Lattice, LatticeError, Level};
+use rungs_lattice::{Lattice, Level};
 
 use crate::args::{Command, Supercell};
 use crate::error::CliError;
@@ -38,29 +38,17 @@ pub fn load_lattice(path: &Path) -> Result<Lattice, CliError> {
 }
 
 /// The levels to compute: `requested` in the order given (duplicates dropped), or every
-/// level of the lattice when `None`. An unknown name is an error listing the known ones.
+/// level of the lattice when `None` (`rungs_solve::levels::select_levels`). An unknown
+/// name is an error listing the known ones; an empty list says what to name.
 pub fn select_levels(
     lattice: &Lattice,
     requested: Option<&[String]>,
 ) -> Result<Vec<String>, CliError> {
-    let known = Level::names(lattice);
-    let Some(requested) = requested else {
-        return Ok(known);
-    };
-    let mut chosen: Vec<String> = Vec::new();
-    for name in requested {
-        let name = name.trim();
-        if !known.iter().any(|k| k == name) {
-            return Err(LatticeError::unknown_level(name, &known).into());
-        }
-        if !chosen.iter().any(|c| c == name) {
-            chosen.push(name.to_string());
-        }
-    }
+    let chosen = rungs_solve::levels::select_levels(lattice, requested)?;
     if chosen.is_empty() {
         return Err(CliError::Usage(format!(
             "--levels is empty: name at least one of {}",
-            known.join(", ")
+            Level::names(lattice).join(", ")
         )));
     }
     Ok(chosen)

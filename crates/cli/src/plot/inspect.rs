@@ -11,7 +11,7 @@
 //! Coordinates are Cartesian (`Σ_k n_k v_k + r_a`). 2D lattices are drawn in their
 //! plane, 1D lattices along a line, 3D lattices in an oblique (cabinet-style) projection
 //! `(x + ½ z cos 30°, y + ½ z sin 30°)`. The legend has a panel of its own on the right. [`draw`] draws on any plotters drawing area
-//! (SVG or bitmap); [`write`] renders SVG and writes it atomically.
+//! (SVG or bitmap); [`write()`] renders SVG and writes it atomically.
 
 use std::path::Path;
 

@@ -19,7 +19,7 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::file::Figure;
 use super::style::{linear_range, nice_range};
-use crate::commands::ladder::{Extrapolated, Ladder, ReferenceKind};
+use rungs_reference::ladder::{Extrapolated, Ladder, ReferenceKind};
 
 /// Height of the figure and width of each panel, in pixels.
 const HEIGHT: u32 = 640;
@@ -422,7 +422,7 @@ fn draw_coherent_anomaly<DB: DrawingBackend>(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::commands::ladder::RungResult;
+    use rungs_reference::ladder::RungResult;
 
     #[test]
     fn the_tc_axis_ends_on_a_tick_above_the_top_rung() {

@@ -1,17 +1,12 @@
-//! The ladder as a report: a table for people, CSV rows and the JSON of the command
-//! contract (`lattice`, `reference`, `levels`, `extrapolations`, plus `notes`). Unknown
-//! numbers are `null` in JSON and empty in CSV, never NaN.
+//! The ladder as a report: a table for people and CSV rows. The JSON of the command
+//! contract (`lattice`, `reference`, `levels`, `extrapolations`, plus `notes`) is the
+//! library result's own serialization (`rungs_reference::ladder::Ladder`), the same that
+//! the Python package returns. Unknown numbers are empty in CSV, never NaN.
 
-use serde_json::{json, Value};
+use rungs_reference::ladder::{Ladder, ReferenceKind, RungResult};
+use serde_json::Value;
 
-use super::{Extrapolated, Ladder, ReferenceKind, RungResult};
 use crate::output::{fixed, num, Block, Grid, Report, TextDoc};
-
-/// A JSON number, or `null` when unknown or not finite.
-fn jnum(x: Option<f64>) -> Value {
-    x.filter(|v| v.is_finite())
-        .map_or(Value::Null, |v| json!(v))
-}
 
 /// A CSV cell: the number, or empty.
 fn cnum(x: Option<f64>) -> String {
@@ -42,76 +37,33 @@ fn status(r: &RungResult) -> String {
     }
 }
 
-impl Ladder {
-    fn level_json(&self, r: &RungResult) -> Value {
-        json!({
-            "level": r.level,
-            "max_cluster_sites": r.max_cluster_sites,
-            "variables": r.variables,
-            "tc": jnum(r.tc),
-            "deviation": jnum(self.deviation(r.tc)),
-            "amplitude": jnum(r.amplitude),
-            "mode": r.mode.map(|m| m.as_str()),
-            "seconds": r.seconds,
-            "skipped": r.skipped,
-        })
-    }
-
-    fn extrapolation_json(&self, e: &Extrapolated) -> Value {
-        let mut v = json!({
-            "method": e.method,
-            "tc": e.tc,
-            "tc_error": e.tc_error,
-            "deviation": jnum(self.deviation(Some(e.tc))),
-        });
-        if e.method == "coherent-anomaly" {
-            v["gamma"] = jnum(e.gamma);
-            v["gamma_error"] = jnum(e.gamma_error);
+/// The reference lines of the table.
+fn reference_fields(ladder: &Ladder) -> Vec<(String, String)> {
+    match &ladder.reference {
+        Some(r) => {
+            let error = r
+                .tc_error
+                .map_or(String::new(), |e| format!(" ± {}", fixed(e, 4)));
+            let kind = match r.kind {
+                ReferenceKind::Exact => "exact closed form",
+                ReferenceKind::File => "from the lattice file",
+                ReferenceKind::MonteCarlo => "Monte Carlo estimate, this run",
+            };
+            vec![
+                (
+                    "reference Tc".into(),
+                    format!("{}{error} ({kind})", fixed(r.tc, 6)),
+                ),
+                ("source".into(), r.source.clone()),
+            ]
         }
-        v
-    }
-
-    fn reference_fields(&self) -> Vec<(String, String)> {
-        match &self.reference {
-            Some(r) => {
-                let error = r
-                    .tc_error
-                    .map_or(String::new(), |e| format!(" ± {}", fixed(e, 4)));
-                let kind = match r.kind {
-                    ReferenceKind::Exact => "exact closed form",
-                    ReferenceKind::File => "from the lattice file",
-                    ReferenceKind::MonteCarlo => "Monte Carlo estimate, this run",
-                };
-                vec![
-                    (
-                        "reference Tc".into(),
-                        format!("{}{error} ({kind})", fixed(r.tc, 6)),
-                    ),
-                    ("source".into(), r.source.clone()),
-                ]
-            }
-            None => vec![("reference Tc".into(), "none (see notes)".into())],
-        }
+        None => vec![("reference Tc".into(), "none (see notes)".into())],
     }
 }
 
 impl Report for Ladder {
     fn json(&self) -> Result<Value, serde_json::Error> {
-        let reference = self.reference.as_ref().map(|r| {
-            let mut v = json!({"tc": r.tc, "source": r.source, "kind": r.kind.as_str()});
-            if let Some(e) = r.tc_error {
-                v["tc_error"] = jnum(Some(e));
-            }
-            v
-        });
-        Ok(json!({
-            "lattice": self.lattice,
-            "dimension": self.dimension,
-            "reference": reference,
-            "levels": self.rungs.iter().map(|r| self.level_json(r)).collect::<Vec<_>>(),
-            "extrapolations": self.extrapolations.iter().map(|e| self.extrapolation_json(e)).collect::<Vec<_>>(),
-            "notes": self.notes,
-        }))
+        serde_json::to_value(self)
     }
 
     fn csv(&self) -> Grid {
@@ -181,7 +133,7 @@ impl Report for Ladder {
     }
 
     fn table(&self) -> TextDoc {
-        let mut blocks = vec![Block::Fields(self.reference_fields())];
+        let mut blocks = vec![Block::Fields(reference_fields(self))];
         let mut rungs = Grid::new([
             "level",
             "sites",

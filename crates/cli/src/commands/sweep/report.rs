@@ -1,166 +1,48 @@
-//! The `rungs sweep` report: a table per level (with the caution notes), CSV with the
-//! columns of the command contract, and JSON points carrying also the sublattice
+//! The `rungs sweep` report views: a table per level (with the caution notes) and CSV
+//! with the columns of the command contract. The JSON is the library result's own
+//! serialization (`rungs_solve::sweep_report::SweepReport`: points with the sublattice
 //! magnetisations of the cell followed, the ordering wavevector, the branch, every
-//! bond's correlation and a note. Points left out are listed with why.
+//! bond's correlation and a note; points left out with why), the same that the Python
+//! package reads its arrays from. With `--plot`, a note cites the exact curves drawn.
 
 use rungs_lattice::Lattice;
 use rungs_reference::closed::ClosedForm;
-use rungs_solve::Observables;
-use serde_json::{json, Map, Value};
+use rungs_solve::sweep_report::{self, COLUMNS};
+use serde_json::Value;
 
-use super::{LevelSweep, PointInfo, COLUMNS};
-use crate::commands::tc::{order_note, NOT_BOUNDS_NOTE, ONE_D_NOTE};
 use crate::output::{fixed, num, Block, Grid, Report, TextDoc};
 use crate::plot::sweep::{LevelCurves, Quantity, SweepFigure};
 
 /// Table header of the susceptibility: the response to the field, not `mc`'s χ′.
 pub const CHI: &str = "χ = ∂m/∂h";
 
-/// What the specific heat and the susceptibility of `sweep` are (JSON `definitions`).
-pub const DEFINITIONS: [(&str, &str); 2] = [
-    ("specific_heat", "dU/dT at fixed h, per site"),
-    (
-        "susceptibility",
-        "dm/dh at fixed T, per site (the response to the field); not mc's N(<m^2> - <|m|>^2)/T",
-    ),
-];
-
-/// The full `sweep` result.
+/// The `sweep` result as this command shows it: the library's report, and the closed
+/// form whose exact curves a figure draws.
 #[derive(Debug, Clone)]
 pub struct SweepReport {
-    lattice: String,
-    dimension: usize,
-    fields: Vec<f64>,
+    /// The library's result (its notes include the figure's, when one is drawn).
+    pub report: sweep_report::SweepReport,
     exact: Option<ClosedForm>,
-    /// One entry per level, in the order asked for.
-    pub levels: Vec<LevelSweep>,
-    notes: Vec<String>,
 }
 
 impl SweepReport {
-    /// Assemble the report of `levels` swept on `lattice` at `fields`.
+    /// Wrap the sweep `report` of `lattice`; when a figure of `plotted` panels is drawn,
+    /// a note cites the exact curves it shows.
     pub fn new(
         lattice: &Lattice,
-        fields: Vec<f64>,
-        levels: Vec<LevelSweep>,
+        report: sweep_report::SweepReport,
         plotted: Option<&[Quantity]>,
     ) -> SweepReport {
-        let exact = ClosedForm::recognise(lattice);
-        let mut report = SweepReport {
-            lattice: lattice.name().to_string(),
-            dimension: lattice.dimension(),
-            fields,
-            exact,
-            levels,
-            notes: Vec::new(),
+        let mut view = SweepReport {
+            report,
+            exact: ClosedForm::recognise(lattice),
         };
-        report.notes = report.make_notes(lattice, plotted);
-        report
-    }
-
-    fn make_notes(&self, lattice: &Lattice, plotted: Option<&[Quantity]>) -> Vec<String> {
-        let mut notes = vec![
-            "per site, k_B = 1: T in units of J/k_B; m magnetisation, U energy, F free energy (J), \
-             S entropy (k_B), C specific heat (k_B), χ = ∂m/∂h (the response to the field; not `mc`'s \
-             χ′ = N(⟨m²⟩ − ⟨|m|⟩²)/T, which is about 0.36 χ above Tc), order parameter = amplitude \
-             of the level's ordering pattern in the sublattice magnetisations (|m| for uniform order, \
-             the staggered magnetisation for Néel order, 0 in the disordered phase)."
-                .to_string(),
-            "each point continues the branch of the point before it (warm start), in the order the \
-             temperatures are given: a path that cools through a first-order transition stays in the \
-             disordered phase until it becomes unstable, one that heats stays ordered until that \
-             branch ends (hysteresis); the first point takes the lower free energy."
-                .to_string(),
-            order_note(lattice),
-            NOT_BOUNDS_NOTE.to_string(),
-        ];
-        let d = self.dimension;
-        for l in &self.levels {
-            if l.cell != [1, 1, 1] {
-                let cell: Vec<String> = l.cell[..d].iter().map(usize::to_string).collect();
-                notes.push(format!(
-                    "level `{}` is followed on the {} cell ({} sites){}.",
-                    l.level,
-                    cell.join("x"),
-                    l.site_names.len(),
-                    l.ordering.as_ref().map_or(String::new(), |o| format!(
-                        ", which holds its ordering wavevector q = ({})",
-                        o.wavevector[..d]
-                            .iter()
-                            .map(|v| num(*v))
-                            .collect::<Vec<_>>()
-                            .join(", ")
-                    ))
-                ));
-            }
-            for n in &l.notes {
-                notes.push(format!("level `{}`: {n}", l.level));
-            }
-            // One note per kind of caution, with the points it concerns.
-            let mut kinds: Vec<(String, Vec<String>, String)> = Vec::new();
-            for (p, i) in l.points.iter().zip(&l.info) {
-                for n in &i.notes {
-                    let kind = n.split(['=', ':']).next().unwrap_or(n).trim().to_string();
-                    let at = format!("T = {}, h = {}", num(p.temperature), num(p.field));
-                    match kinds.iter_mut().find(|k| k.0 == kind) {
-                        Some(k) => k.1.push(at),
-                        None => kinds.push((kind, vec![at], n.clone())),
-                    }
-                }
-            }
-            for (_, at, first) in kinds {
-                let shown = if at.len() > 6 {
-                    format!("{} … {} ({} points)", at[0], at[at.len() - 1], at.len())
-                } else {
-                    at.join("; ")
-                };
-                notes.push(format!("level `{}` at {shown}: {first}", l.level));
+        if let (Some(panels), Some(form)) = (plotted, &view.exact) {
+            if let Some(note) = view.exact_note(form, panels) {
+                view.report.notes.push(note);
             }
         }
-        let ordering: Vec<&str> = self
-            .levels
-            .iter()
-            .filter(|l| {
-                l.points
-                    .iter()
-                    .any(|p| p.field == 0.0 && p.magnetization.abs() > 1e-6)
-            })
-            .map(|l| l.level.as_str())
-            .collect();
-        if self.dimension == 1 && !ordering.is_empty() {
-            notes.push(format!(
-                "level(s) `{}` order spontaneously (m ≠ 0 at h = 0) on this 1D lattice — {ONE_D_NOTE}",
-                ordering.join("`, `")
-            ));
-        }
-        for l in &self.levels {
-            // One note per reason (the engine's message without its own T and h), with
-            // the points it concerns.
-            let mut reasons: Vec<(String, Vec<String>)> = Vec::new();
-            for o in &l.omitted {
-                let at = format!("T = {}, h = {}", num(o.temperature), num(o.field));
-                let reason = o
-                    .reason
-                    .split_once(&format!("{at}: "))
-                    .map_or(o.reason.clone(), |(_, r)| r.to_string());
-                match reasons.iter_mut().find(|r| r.0 == reason) {
-                    Some(r) => r.1.push(at),
-                    None => reasons.push((reason, vec![at])),
-                }
-            }
-            for (reason, at) in reasons {
-                let shown = if at.len() > 4 {
-                    format!("{} … {} ({} points)", at[0], at[at.len() - 1], at.len())
-                } else {
-                    at.join("; ")
-                };
-                notes.push(format!("omitted: level `{}` at {shown}: {reason}", l.level));
-            }
-        }
-        if let (Some(panels), Some(form)) = (plotted, &self.exact) {
-            notes.extend(self.exact_note(form, panels));
-        }
-        notes
+        view
     }
 
     /// The note citing the exact curves the figure draws, naming the fields where the
@@ -172,6 +54,7 @@ impl SweepReport {
         }
         let list = |hs: &[f64]| hs.iter().map(|h| num(*h)).collect::<Vec<_>>().join(", ");
         let missing: Vec<f64> = self
+            .report
             .fields
             .iter()
             .copied()
@@ -193,8 +76,9 @@ impl SweepReport {
     /// What the plot draws, in `panels`.
     pub fn figure<'a>(&'a self, panels: &'a [Quantity]) -> SweepFigure<'a> {
         SweepFigure {
-            lattice: &self.lattice,
+            lattice: &self.report.lattice,
             levels: self
+                .report
                 .levels
                 .iter()
                 .map(|l| LevelCurves {
@@ -203,51 +87,10 @@ impl SweepReport {
                     tc: l.tc,
                 })
                 .collect(),
-            fields: &self.fields,
+            fields: &self.report.fields,
             exact: self.exact,
             panels,
         }
-    }
-
-    fn point_json(&self, l: &LevelSweep, p: &Observables, info: &PointInfo) -> Value {
-        let sub: Map<String, Value> = l
-            .site_names
-            .iter()
-            .cloned()
-            .zip(p.sublattice_magnetization.iter().map(|m| json!(m)))
-            .collect();
-        let bonds: Vec<Value> = l
-            .bonds
-            .iter()
-            .zip(&p.bond_correlations)
-            .map(|(b, c)| json!({"from": b.from, "to": b.to, "cell": b.cell, "coupling": b.coupling, "correlation": c}))
-            .collect();
-        let d = self.dimension;
-        let wavevector = l
-            .ordering
-            .as_ref()
-            .map_or_else(|| vec![0.0; d], |o| o.wavevector[..d].to_vec());
-        let note = (!info.notes.is_empty()).then(|| info.notes.join("; "));
-        json!({
-            "level": l.level,
-            "temperature": p.temperature,
-            "field": p.field,
-            "magnetization": p.magnetization,
-            "energy": p.energy,
-            "free_energy": p.free_energy,
-            "entropy": p.entropy,
-            "specific_heat": p.specific_heat,
-            "susceptibility": p.susceptibility,
-            "order_parameter": info.order_parameter,
-            "branch": info.branch.as_str(),
-            "sublattice_magnetizations": p.sublattice_magnetization,
-            "sublattice_magnetization": sub,
-            "wavevector": wavevector,
-            "cell": l.cell[..d],
-            "bond_correlations": bonds,
-            "note": note,
-            "negative_entropy": p.entropy < -1e-10,
-        })
     }
 }
 
@@ -265,63 +108,35 @@ fn cell(x: f64) -> String {
 
 impl Report for SweepReport {
     fn json(&self) -> Result<Value, serde_json::Error> {
-        let points: Vec<Value> = self
-            .levels
-            .iter()
-            .flat_map(|l| {
-                l.points
-                    .iter()
-                    .zip(&l.info)
-                    .map(move |(p, i)| self.point_json(l, p, i))
-            })
-            .collect();
-        let omitted: Vec<Value> = self
-            .levels
-            .iter()
-            .flat_map(|l| {
-                l.omitted.iter().map(|o| {
-                    json!({"level": l.level, "temperature": o.temperature, "field": o.field, "reason": o.reason})
-                })
-            })
-            .collect();
-        Ok(json!({
-            "lattice": self.lattice,
-            "fields": self.fields,
-            "points": points,
-            "omitted": omitted,
-            "notes": self.notes,
-            "definitions": DEFINITIONS.iter().map(|(k, v)| ((*k).to_string(), json!(v))).collect::<Map<_, _>>(),
-        }))
+        serde_json::to_value(&self.report)
     }
 
     fn csv(&self) -> Grid {
         let mut grid = Grid::new(COLUMNS);
-        for l in &self.levels {
-            for (p, i) in l.points.iter().zip(&l.info) {
-                grid.push([
-                    l.level.clone(),
-                    num(p.temperature),
-                    num(p.field),
-                    num(p.magnetization),
-                    num(p.energy),
-                    num(p.free_energy),
-                    num(p.entropy),
-                    num(p.specific_heat),
-                    num(p.susceptibility),
-                    num(i.order_parameter),
-                ]);
-            }
+        for r in self.report.rows() {
+            grid.push([
+                r.level.to_string(),
+                num(r.temperature),
+                num(r.field),
+                num(r.magnetization),
+                num(r.energy),
+                num(r.free_energy),
+                num(r.entropy),
+                num(r.specific_heat),
+                num(r.susceptibility),
+                num(r.order_parameter),
+            ]);
         }
         grid
     }
 
     fn table(&self) -> TextDoc {
-        let fields: Vec<String> = self.fields.iter().map(|h| num(*h)).collect();
+        let fields: Vec<String> = self.report.fields.iter().map(|h| num(*h)).collect();
         let mut blocks = vec![Block::Fields(vec![
-            ("lattice".into(), self.lattice.clone()),
+            ("lattice".into(), self.report.lattice.clone()),
             ("fields h".into(), fields.join(", ")),
         ])];
-        for l in &self.levels {
+        for l in &self.report.levels {
             blocks.push(Block::Heading(format!(
                 "Level `{}` (largest cluster {} site{}), per site",
                 l.level,
@@ -358,10 +173,10 @@ impl Report for SweepReport {
         TextDoc {
             title: format!(
                 "rungs sweep: thermodynamics per site, lattice `{}`",
-                self.lattice
+                self.report.lattice
             ),
             blocks,
-            notes: self.notes.clone(),
+            notes: self.report.notes.clone(),
         }
     }
 }

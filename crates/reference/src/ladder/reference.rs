@@ -3,7 +3,8 @@
 //! 1. the exact Tc of a closed form recognised from the lattice's bonds (Onsager,
 //!    Houtappel, Syozi, ...; `rungs_reference::closed`);
 //! 2. the file's `reference: {tc, source}`;
-//! 3. with `--mc`, and only when neither exists, a Monte Carlo estimate made on the spot:
+//! 3. when asked for ([`LadderOptions::monte_carlo`], `rungs ladder --mc`), and only when
+//!    neither exists, a Monte Carlo estimate made on the spot:
 //!    Wolff (or Metropolis) runs on three torus sizes around the best rung's Tc and the
 //!    crossing of their Binder cumulants (Binder 1981, Z. Phys. B 43, 119), with its error.
 //!
@@ -11,15 +12,19 @@
 //! reference Tc, and no Monte Carlo run is made for it.
 
 use rungs_lattice::Lattice;
-use rungs_reference::closed::ClosedForm;
-use rungs_reference::montecarlo::{self, McConfig, TcEstimate};
+use serde::{Serialize, Serializer};
 
 use super::climb::{Extrapolated, RungResult};
-use super::LadderOptions;
-use crate::output::num;
-use crate::progress::Progress;
+use super::{LadderEvent, LadderOptions};
+use crate::closed::ClosedForm;
+use crate::montecarlo::{self, McConfig, TcEstimate};
 
-/// Where a reference Tc comes from.
+/// A number for notes: the shortest text that reads back to the same `f64`.
+fn num(x: f64) -> String {
+    format!("{x}")
+}
+
+/// Where a reference Tc comes from (JSON: `exact`, `file`, `monte-carlo`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum ReferenceKind {
     /// An exact closed form.
@@ -41,12 +46,20 @@ impl ReferenceKind {
     }
 }
 
-/// The reference critical temperature.
-#[derive(Debug, Clone, PartialEq)]
+impl Serialize for ReferenceKind {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.serialize_str(self.as_str())
+    }
+}
+
+/// The reference critical temperature (JSON: `tc`, `source`, `kind`, and `tc_error` for a
+/// Monte Carlo estimate).
+#[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct ReferenceTc {
     /// Critical temperature (units of the file's couplings, k_B = 1).
     pub tc: f64,
     /// Uncertainty, for a Monte Carlo estimate.
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub tc_error: Option<f64>,
     /// Published source or how it was computed.
     pub source: String,
@@ -55,12 +68,14 @@ pub struct ReferenceTc {
 }
 
 /// Choose the reference (module docs); explain any choice or absence in `notes`.
+/// `observe` hears the progress of a Monte Carlo run.
 pub fn choose(
     lattice: &Lattice,
     rungs: &[RungResult],
     extrapolations: &[Extrapolated],
     options: LadderOptions,
     notes: &mut Vec<String>,
+    observe: &(dyn Fn(LadderEvent<'_>) + Sync),
 ) -> Option<ReferenceTc> {
     if options.field != 0.0 {
         notes.push(format!(
@@ -95,7 +110,9 @@ pub fn choose(
                     None => form.source().to_string(),
                 };
                 if options.monte_carlo {
-                    notes.push("--mc: no Monte Carlo run, the exact Tc is known".into());
+                    notes.push(
+                        "Monte Carlo reference: no Monte Carlo run, the exact Tc is known".into(),
+                    );
                 }
                 return Some(ReferenceTc {
                     tc,
@@ -111,7 +128,10 @@ pub fn choose(
                     form.source()
                 ));
                 if options.monte_carlo {
-                    notes.push("--mc: no Monte Carlo run, there is no transition to locate".into());
+                    notes.push(
+                        "Monte Carlo reference: no Monte Carlo run, there is no transition to locate"
+                            .into(),
+                    );
                 }
                 return None;
             }
@@ -119,7 +139,9 @@ pub fn choose(
     }
     if let Some(r) = file {
         if options.monte_carlo {
-            notes.push("--mc: no Monte Carlo run, the file gives a reference Tc".into());
+            notes.push(
+                "Monte Carlo reference: no Monte Carlo run, the file gives a reference Tc".into(),
+            );
         }
         return Some(ReferenceTc {
             tc: r.tc,
@@ -130,16 +152,16 @@ pub fn choose(
     }
     if !options.monte_carlo {
         notes.push(
-            "no reference: no closed form applies and the file has no `reference:`; run with --mc for a \
-             Monte Carlo estimate"
+            "no reference: no closed form applies and the file has no `reference:`; ask for a Monte \
+             Carlo estimate (`rungs ladder --mc`)"
                 .into(),
         );
         return None;
     }
-    match monte_carlo(lattice, rungs, extrapolations, options.progress) {
+    match monte_carlo(lattice, rungs, extrapolations, observe) {
         Ok(reference) => Some(reference),
         Err(why) => {
-            notes.push(format!("--mc: no Monte Carlo reference: {why}"));
+            notes.push(format!("no Monte Carlo reference: {why}"));
             None
         }
     }
@@ -169,7 +191,7 @@ fn monte_carlo(
     lattice: &Lattice,
     rungs: &[RungResult],
     extrapolations: &[Extrapolated],
-    progress: bool,
+    observe: &(dyn Fn(LadderEvent<'_>) + Sync),
 ) -> Result<ReferenceTc, String> {
     let sizes = sizes(lattice.dimension()).ok_or_else(|| {
         format!(
@@ -190,24 +212,21 @@ fn monte_carlo(
         .fold(0.70 * best, f64::min)
         .max(0.3 * best);
     let lattice = lattice.with_field(0.0);
-    let bar = |total: usize, what: &str| {
-        if progress {
-            Progress::new(total as u64, what)
-        } else {
-            Progress::hidden()
-        }
-    };
     let coarse = McConfig {
         temperatures: grid(low, 1.02 * best, 15),
         sweeps: 1_000,
         warmup: 200,
         ..McConfig::default()
     };
-    let b = bar(1, "Monte Carlo reference (scan)");
-    let observe = b.observer();
-    let first = montecarlo::run(&lattice, &sizes[..2], &coarse, Some(&observe))
-        .map_err(|e| e.to_string())?;
-    b.finish();
+    let scan = |done, total| {
+        observe(LadderEvent::MonteCarlo {
+            pass: "scan",
+            done,
+            total,
+        })
+    };
+    let first =
+        montecarlo::run(&lattice, &sizes[..2], &coarse, Some(&scan)).map_err(|e| e.to_string())?;
     let centre = first
         .tc_estimate
         .as_ref()
@@ -227,11 +246,15 @@ fn monte_carlo(
         warmup: 400,
         ..coarse
     };
-    let b = bar(1, "Monte Carlo reference");
-    let observe = b.observer();
+    let refine = |done, total| {
+        observe(LadderEvent::MonteCarlo {
+            pass: "refine",
+            done,
+            total,
+        })
+    };
     let second =
-        montecarlo::run(&lattice, &sizes, &fine, Some(&observe)).map_err(|e| e.to_string())?;
-    b.finish();
+        montecarlo::run(&lattice, &sizes, &fine, Some(&refine)).map_err(|e| e.to_string())?;
     let (estimate, config, used) = match second.tc_estimate {
         Some(e) => (e, &fine, &sizes[..]),
         None => (

@@ -1,4 +1,5 @@
-//! The extra rungs of `--up-to N`: square-ish blocks of cells beyond the file's levels.
+//! The extra rungs of a ladder climbed up to N sites (`rungs ladder --up-to N`):
+//! square-ish blocks of cells beyond the file's levels.
 //!
 //! Blocks are `n_1 × … × n_d` cells with `n_1 ≤ … ≤ n_d ≤ n_1 + 1` (2D: 2×2, 2×3, 3×3,
 //! 3×4, 4×4, …; 3D: 2×2×2, 2×2×3, 2×3×3, …; 1D: 3, 4, 5, … cells), every basis site of
@@ -8,9 +9,7 @@
 //! square plaquette is the 2×2 block) is not added twice. Each is added with
 //! [`Lattice::with_block_level`] as level `block{n1}x{n2}[x{n3}]`.
 
-use rungs_lattice::{Cell, Lattice, MAX_CLUSTER_SITES};
-
-use crate::error::CliError;
+use rungs_lattice::{Cell, Lattice, LatticeError, MAX_CLUSTER_SITES};
 
 /// The square-ish block shapes of a `dimension`-D lattice with `basis` sites per cell,
 /// `3 ≤ sites ≤ limit`, smallest first.
@@ -80,7 +79,7 @@ pub fn with_blocks(
     lattice: &Lattice,
     up_to: usize,
     notes: &mut Vec<String>,
-) -> Result<Lattice, CliError> {
+) -> Result<Lattice, LatticeError> {
     let (d, basis) = (lattice.dimension(), lattice.sites_per_cell());
     let known: Vec<Vec<(usize, Cell)>> = lattice
         .level_specs()
@@ -106,13 +105,13 @@ pub fn with_blocks(
     }
     if !added.is_empty() {
         notes.push(format!(
-            "--up-to {up_to}: added blocks of cells beyond the file's levels: {}",
+            "up to {up_to} sites: added blocks of cells beyond the file's levels: {}",
             added.join(", ")
         ));
     }
     if up_to > MAX_CLUSTER_SITES {
         notes.push(format!(
-            "--up-to {up_to}: blocks are generated up to {MAX_CLUSTER_SITES} sites, the largest cluster a level may have"
+            "up to {up_to} sites: blocks are generated up to {MAX_CLUSTER_SITES} sites, the largest cluster a level may have"
         ));
     }
     Ok(extended)

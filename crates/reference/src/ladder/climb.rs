@@ -1,20 +1,20 @@
-//! Climbing the ladder: the critical point of every level, then the extrapolations.
+//! Climbing the ladder: the critical point of every level, then the extrapolations and
+//! the notes about single rungs.
 //!
 //! Each level's Tc is where the paramagnet's odd-sector Hessian loses positivity, and
 //! its critical amplitude χ̄ (in χ ≈ χ̄/(T − Tc)) comes from the slope of that eigenvalue
-//! (see `rungs_solve::tc`). Over the cluster rungs (pair and larger) two extrapolations
-//! are tried: the coherent-anomaly method, `χ̄_n = A (Tc_n − Tc*)^(−ψ)`, γ = 1 + ψ
+//! (see `rungs_solve::tc`); the levels are searched by `rungs_solve::levels`. Over the
+//! cluster rungs (pair and larger) two extrapolations are tried: the coherent-anomaly method, `χ̄_n = A (Tc_n − Tc*)^(−ψ)`, γ = 1 + ψ
 //! (Suzuki 1986, J. Phys. Soc. Jpn. 55, 4205), and the inverse-size line
 //! `Tc_n = Tc* + b/N_n` (Kikuchi & Brush 1967, J. Chem. Phys. 47, 195). An extrapolation
-//! that cannot be made is explained in a note; it never fails the command.
+//! that cannot be made is explained in a note; it never fails the ladder.
 
-use rungs_lattice::{CompactLevel, Lattice, Level, MAX_MATERIALISED_SITES};
+use rungs_lattice::{Lattice, LatticeError, Level};
 use rungs_solve::extrapolate::{coherent_anomaly, inverse_size, Extrapolation, Rung};
-use rungs_solve::{critical_temperature, ModeKind, SolveError, TcOptions};
+use rungs_solve::levels::{tc_levels, LevelEvent, LevelTc, LevelsError, Schedule, TcOutcome};
+use rungs_solve::ModeKind;
 
-use crate::error::CliError;
-use crate::output::num;
-use crate::progress::Progress;
+use super::LadderError;
 
 /// The result of one level.
 #[derive(Debug, Clone, PartialEq)]
@@ -52,9 +52,9 @@ pub struct Extrapolated {
     pub gamma: Option<f64>,
     /// Uncertainty of γ.
     pub gamma_error: Option<f64>,
-    /// Slope b of `Tc_n = Tc* + b/N_n` (inverse-size only; for the figure).
+    /// Slope b of `Tc_n = Tc* + b/N_n` (inverse-size only; for a figure).
     pub slope: Option<f64>,
-    /// The levels the fit used (for the figure's coherent-anomaly view).
+    /// The levels the fit used (for a figure's coherent-anomaly view).
     pub fitted: Vec<String>,
 }
 
@@ -64,7 +64,7 @@ pub fn rung_names(
     lattice: &Lattice,
     up_to: Option<u32>,
     notes: &mut Vec<String>,
-) -> Result<Vec<String>, CliError> {
+) -> Result<Vec<String>, LatticeError> {
     let mut sized = Vec::new();
     for name in Level::names(lattice) {
         let sites = Level::max_cluster_sites_of(lattice, &name)?;
@@ -79,112 +79,70 @@ pub fn rung_names(
             .map(|(s, name)| format!("`{name}` ({s} sites)"))
             .collect();
         if !left_out.is_empty() {
-            notes.push(format!("--up-to {n}: left out {}", left_out.join(", ")));
+            notes.push(format!("up to {n} sites: left out {}", left_out.join(", ")));
         }
         sized.retain(|(s, _)| *s <= n);
     }
     Ok(sized.into_iter().map(|(_, name)| name).collect())
 }
 
-/// Build and solve every level in `names`, in order; `bar` advances once per level.
-/// A level the engine cannot do is kept as skipped; if no level gives a result at all,
-/// that is an error (exit status 1).
+/// A level's critical point as a rung.
+fn rung(row: LevelTc) -> RungResult {
+    let base = RungResult {
+        level: row.level,
+        max_cluster_sites: row.max_cluster_sites,
+        variables: row.variables,
+        tc: None,
+        amplitude: None,
+        mode: None,
+        searched_down_to: None,
+        seconds: row.seconds,
+        skipped: None,
+    };
+    match row.outcome {
+        TcOutcome::Searched(cp) => RungResult {
+            tc: cp.tc.filter(|t| t.is_finite()),
+            amplitude: cp.amplitude.filter(|a| a.is_finite()),
+            mode: cp.tc.map(|_| cp.kind),
+            searched_down_to: cp.tc.is_none().then_some(cp.searched_down_to),
+            ..base
+        },
+        TcOutcome::Refused(why) => RungResult {
+            skipped: Some(format!("too large for the engine: {why}")),
+            ..base
+        },
+        TcOutcome::Failed(why) => RungResult {
+            skipped: Some(format!("not computed: {why}")),
+            ..base
+        },
+    }
+}
+
+/// Build and solve every level in `names`, one at a time in order
+/// ([`Schedule::Chained`]: each search starts just above the lowest Tc of the smaller
+/// cluster rungs). A level the engine cannot do is kept as skipped; if no level gives a
+/// result at all, that is an error.
 pub fn climb(
     lattice: &Lattice,
     names: &[String],
     field: f64,
-    bar: &Progress,
-) -> Result<Vec<RungResult>, CliError> {
-    let mut rungs = Vec::with_capacity(names.len());
-    for name in names {
-        let line = bar.line(&format!("level `{name}`"));
-        line.stage("building clusters");
-        // Clusters beyond MAX_MATERIALISED_SITES (e.g. the 5×5 block) exist only on
-        // point-group orbits; their search is matrix-free.
-        let sites = Level::max_cluster_sites_of(lattice, name)?;
-        let (level, compact) = if sites > MAX_MATERIALISED_SITES {
-            (None, Some(CompactLevel::build(lattice, name)?))
-        } else {
-            (Some(Level::build(lattice, name)?), None)
-        };
-        line.stage("Tc search");
-        let base = RungResult {
-            level: name.clone(),
-            max_cluster_sites: sites,
-            variables: match (&level, &compact) {
-                (Some(l), _) => l.variables.len(),
-                (_, Some(c)) => c.translation_classes(),
-                _ => 0,
-            },
-            tc: None,
-            amplitude: None,
-            mode: None,
-            searched_down_to: None,
-            seconds: 0.0,
-            skipped: None,
-        };
-        let start = std::time::Instant::now();
-        // A big level's search starts just above the lowest Tc of the smaller cluster
-        // rungs (cluster Tc's of a ferromagnet fall as the clusters grow).
-        let start_below = rungs
-            .iter()
-            .filter(|r: &&RungResult| {
-                r.max_cluster_sites >= 2 && r.max_cluster_sites < base.max_cluster_sites
-            })
-            .filter_map(|r| r.tc)
-            .reduce(f64::min)
-            .map(|t| 1.01 * t);
-        let options = TcOptions {
-            start_below,
-            field,
-            ..TcOptions::default()
-        };
-        let result = match (&level, &compact) {
-            (Some(l), _) => critical_temperature(lattice, l, options),
-            (_, Some(c)) => rungs_solve::big::critical_temperature_compact(lattice, c, options),
-            _ => continue,
-        };
-        let rung = match result {
-            Ok(cp) => RungResult {
-                tc: cp.tc.filter(|t| t.is_finite()),
-                amplitude: cp.amplitude.filter(|a| a.is_finite()),
-                mode: cp.tc.map(|_| cp.kind),
-                searched_down_to: cp.tc.is_none().then_some(cp.searched_down_to),
-                seconds: cp.seconds,
-                ..base
-            },
-            Err(SolveError::TooLarge { variables, limit, gib, .. }) => RungResult {
-                skipped: Some(format!(
-                    "too large for the dense engine: {variables} correlation variables (limit {limit}, \
-                     the Hessian would need {gib:.1} GiB)"
-                )),
-                ..base
-            },
-            Err(e) => RungResult {
-                skipped: Some(format!("not computed: {e}")),
-                seconds: start.elapsed().as_secs_f64(),
-                ..base
-            },
-        };
-        line.finish_with(match (&rung.skipped, rung.tc) {
-            (Some(_), _) => "skipped",
-            (None, None) => "no transition",
-            (None, Some(_)) => "done",
-        });
-        rungs.push(rung);
-        bar.inc(1);
+    observe: &(dyn Fn(LevelEvent<'_>) + Sync),
+) -> Result<Vec<RungResult>, LadderError> {
+    match tc_levels(lattice, names, field, Schedule::Chained, observe) {
+        Ok(rows) => Ok(rows.into_iter().map(rung).collect()),
+        Err(LevelsError::Lattice(e)) => Err(LadderError::Lattice(e)),
+        Err(LevelsError::NothingComputed { reasons }) => {
+            let reasons: Vec<String> = reasons
+                .iter()
+                .map(|(level, why)| format!("{level}: {why}"))
+                .collect();
+            Err(LadderError::NothingComputed(format!(
+                "no level of the ladder could be computed ({})",
+                reasons.join("; ")
+            )))
+        }
+        Err(e) => Err(LadderError::NothingComputed(e.to_string())),
     }
-    if rungs.iter().all(|r| r.skipped.is_some()) {
-        let reasons: Vec<String> = rungs
-            .iter()
-            .map(|r| format!("{}: {}", r.level, r.skipped.as_deref().unwrap_or("")))
-            .collect();
-        return Err(CliError::NotConverged(format!(
-            "no level of the ladder could be computed ({})",
-            reasons.join("; ")
-        )));
-    }
-    Ok(rungs)
 }
 
 /// The cluster rungs an extrapolation may use: a finite Tc, two sites or more, one per
@@ -345,9 +303,7 @@ pub fn rung_notes(lattice: &Lattice, rungs: &[RungResult]) -> Vec<String> {
             ));
         } else if r.tc.is_none() {
             let searched = r.searched_down_to.filter(|t| t.is_finite());
-            let below = searched.map_or(String::new(), |t| {
-                format!(" down to T = {}", num(round4(t)))
-            });
+            let below = searched.map_or(String::new(), |t| format!(" down to T = {}", round4(t)));
             notes.push(format!(
                 "level `{}`: the paramagnet stays stable{below}: no transition found at this level",
                 r.level
@@ -364,7 +320,7 @@ pub fn rung_notes(lattice: &Lattice, rungs: &[RungResult]) -> Vec<String> {
                     "level `{}`: caution: the search stopped above the Tc = {} of the smaller level `{other}`, \
                      so it most likely gave up early (an engine limitation), not found a stable paramagnet",
                     r.level,
-                    num(round4(t))
+                    round4(t)
                 ));
             }
         }

@@ -1,0 +1,508 @@
+//! The critical point at several levels of one lattice: what `rungs tc`, the ladder and
+//! the Python package compute, in one place.
+//!
+//! Each level is built ([`prepare`]) as a dense [`Level`], or — when its clusters exceed
+//! [`MAX_MATERIALISED_SITES`] — only on point-group orbits ([`CompactLevel`]); then its
+//! Tc is searched ([`search`]) with [`critical_temperature`] or, on orbits,
+//! [`crate::big::critical_temperature_compact`]. A level the engine refuses (too large)
+//! or whose search fails stays in the result as a row with its reason
+//! ([`TcOutcome`]); [`tc_levels`] fails only when no level gives a result at all.
+//!
+//! Two schedules ([`Schedule`]): `Parallel` builds every level and searches the dense
+//! ones at once (rayon), then the big ones one by one; `Chained` goes one level at a time
+//! in the order given. Every big level (and, chained, every level) starts its search just
+//! above the lowest Tc of the smaller cluster rungs already found: cluster Tc's of a
+//! ferromagnet fall as the clusters grow (Kikuchi & Brush 1967, J. Chem. Phys. 47, 195).
+//!
+//! Progress goes to an observer ([`LevelEvent`]); nothing here prints.
+
+use std::time::Instant;
+
+use rayon::prelude::*;
+use rungs_lattice::{CompactLevel, Lattice, LatticeError, Level, MAX_MATERIALISED_SITES};
+use thiserror::Error;
+
+use crate::functional::check_size;
+use crate::{critical_temperature, CriticalPoint, SolveError, TcOptions};
+
+/// How the levels are scheduled.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Schedule {
+    /// Build all levels and search the dense ones in parallel; then the big ones (on
+    /// point-group orbits, or too large for the dense Hessian) one by one, each starting
+    /// just above the lowest Tc of the smaller cluster rungs (`rungs tc`).
+    #[default]
+    Parallel,
+    /// One level at a time in the order given, each built just before its search and
+    /// each starting just above the lowest Tc of the smaller cluster rungs (the ladder:
+    /// one level in memory at a time).
+    Chained,
+}
+
+/// What [`tc_levels`] reports while it runs, for a progress display. `index` is the
+/// position of the level in the list given.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LevelEvent<'a> {
+    /// The level entered a stage (`building clusters`, `Tc search`, ...).
+    Stage {
+        /// Position of the level in the list.
+        index: usize,
+        /// What it does now.
+        stage: &'a str,
+    },
+    /// The level is built and waits for its turn.
+    Waiting {
+        /// Position of the level in the list.
+        index: usize,
+    },
+    /// One point of the level's path is done (sweeps).
+    Point {
+        /// Position of the level in the list.
+        index: usize,
+    },
+    /// The level is done: `outcome` is `done`, `no transition`, `skipped` or `failed`.
+    Finished {
+        /// Position of the level in the list.
+        index: usize,
+        /// How it ended.
+        outcome: &'a str,
+    },
+}
+
+/// An observer that ignores every event.
+pub fn no_progress(_: LevelEvent<'_>) {}
+
+/// What the Tc search gave at one level.
+#[derive(Debug, Clone)]
+pub enum TcOutcome {
+    /// The search ran; the critical point's `tc` is `None` when no transition was found.
+    Searched(Box<CriticalPoint>),
+    /// The engine refused the level (too large); the reason says why.
+    Refused(String),
+    /// The search failed (no convergence); the reason says where.
+    Failed(String),
+}
+
+/// One level's critical point, or why there is none.
+#[derive(Debug, Clone)]
+pub struct LevelTc {
+    /// Level name.
+    pub level: String,
+    /// Sites of the largest maximal cluster.
+    pub max_cluster_sites: usize,
+    /// Correlation variables of the level (translation classes on point-group orbits);
+    /// 0 when it could not be built.
+    pub variables: usize,
+    /// Wall-clock seconds: building the level and searching Tc.
+    pub seconds: f64,
+    /// Searched on point-group orbits or past the dense limit (a big level).
+    pub orbit_reduced: bool,
+    /// The result.
+    pub outcome: TcOutcome,
+}
+
+impl LevelTc {
+    /// The critical temperature, when one was found (finite).
+    pub fn tc(&self) -> Option<f64> {
+        self.critical()
+            .and_then(|cp| cp.tc)
+            .filter(|t| t.is_finite())
+    }
+
+    /// The critical point, when the search ran.
+    pub fn critical(&self) -> Option<&CriticalPoint> {
+        match &self.outcome {
+            TcOutcome::Searched(cp) => Some(cp),
+            TcOutcome::Refused(_) | TcOutcome::Failed(_) => None,
+        }
+    }
+
+    /// Why no search result exists (refused or failed), if so.
+    pub fn failure(&self) -> Option<&str> {
+        match &self.outcome {
+            TcOutcome::Searched(_) => None,
+            TcOutcome::Refused(why) | TcOutcome::Failed(why) => Some(why),
+        }
+    }
+
+    /// One word for a progress line: `done`, `no transition`, `skipped` or `failed`.
+    pub fn outcome_word(&self) -> &'static str {
+        match &self.outcome {
+            TcOutcome::Refused(_) => "skipped",
+            TcOutcome::Failed(_) => "failed",
+            TcOutcome::Searched(cp) if cp.tc.is_none() => "no transition",
+            TcOutcome::Searched(_) => "done",
+        }
+    }
+}
+
+/// Why [`tc_levels`] gave nothing.
+#[derive(Debug, Error, Clone, PartialEq)]
+#[non_exhaustive]
+pub enum LevelsError {
+    /// A level could not be built for a reason other than its size (e.g. an unknown
+    /// name): bad input.
+    #[error(transparent)]
+    Lattice(Box<LatticeError>),
+    /// No level gave a result: every one was refused or its search failed.
+    #[error("{}", reasons.iter().map(|(_, r)| r.as_str()).collect::<Vec<_>>().join("; "))]
+    NothingComputed {
+        /// `(level, reason)` for every level.
+        reasons: Vec<(String, String)>,
+    },
+}
+
+impl From<LatticeError> for LevelsError {
+    fn from(e: LatticeError) -> LevelsError {
+        LevelsError::Lattice(Box::new(e))
+    }
+}
+
+/// Levels in ladder order: `site`, `pair`, then the others by their largest cluster
+/// (ties keep the order given). An unknown name is an error listing the known ones.
+pub fn sort_levels(lattice: &Lattice, names: Vec<String>) -> Result<Vec<String>, LatticeError> {
+    let mut keyed = names
+        .into_iter()
+        .map(|n| {
+            let rank = match n.as_str() {
+                "site" => 0,
+                "pair" => 1,
+                _ => 2,
+            };
+            Level::max_cluster_sites_of(lattice, &n).map(|sites| ((rank, sites), n))
+        })
+        .collect::<Result<Vec<_>, _>>()?;
+    keyed.sort_by_key(|(key, _)| *key);
+    Ok(keyed.into_iter().map(|(_, n)| n).collect())
+}
+
+/// The levels asked for: `requested` in the order given (names trimmed, duplicates
+/// dropped), or every level of the lattice when `None`. An unknown name is a
+/// [`LatticeError::UnknownLevel`] listing the known ones (with a suggestion when one is
+/// near); an empty list gives an empty result (the caller says what to do).
+pub fn select_levels(
+    lattice: &Lattice,
+    requested: Option<&[String]>,
+) -> Result<Vec<String>, LatticeError> {
+    let known = Level::names(lattice);
+    let Some(requested) = requested else {
+        return Ok(known);
+    };
+    let mut chosen: Vec<String> = Vec::new();
+    for name in requested {
+        let name = name.trim();
+        if !known.iter().any(|k| k == name) {
+            return Err(LatticeError::unknown_level(name, &known));
+        }
+        if !chosen.iter().any(|c| c == name) {
+            chosen.push(name.to_string());
+        }
+    }
+    Ok(chosen)
+}
+
+/// A level built and ready for the Tc search.
+#[derive(Debug)]
+pub struct Prepared {
+    /// Level name.
+    pub name: String,
+    /// Sites of the largest maximal cluster.
+    pub max_cluster_sites: usize,
+    /// Seconds spent building it.
+    pub seconds: f64,
+    /// The level, or why it cannot be built (cluster over the site limit).
+    pub level: Result<Level, String>,
+    /// Levels whose clusters exceed [`MAX_MATERIALISED_SITES`] (e.g. the 5×5 block),
+    /// built only on point-group orbits.
+    pub compact: Option<CompactLevel>,
+    /// Whether it is too large for the dense engine, so that its Tc is searched on
+    /// point-group orbits (uniform order only, slow).
+    pub big: bool,
+}
+
+impl Prepared {
+    /// Correlation variables (translation classes on point-group orbits); 0 when the
+    /// level could not be built.
+    pub fn variables(&self) -> usize {
+        match (&self.level, &self.compact) {
+            (Ok(level), _) => level.variables.len(),
+            (_, Some(compact)) => compact.translation_classes(),
+            _ => 0,
+        }
+    }
+}
+
+/// Build level `name` of `lattice`. A level over the engine's cluster limits is kept
+/// with its reason (it becomes a [`TcOutcome::Refused`]); any other lattice error (an
+/// unknown name) is returned.
+pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, LatticeError> {
+    let start = Instant::now();
+    let max_cluster_sites = Level::max_cluster_sites_of(lattice, name)?;
+    if max_cluster_sites > MAX_MATERIALISED_SITES {
+        let (level, compact) = match CompactLevel::build(lattice, name) {
+            Ok(c) => (Err("built on point-group orbits only".to_string()), Some(c)),
+            Err(e @ LatticeError::CompactLimit { .. }) => (Err(e.to_string()), None),
+            Err(e) => return Err(e),
+        };
+        return Ok(Prepared {
+            name: name.to_string(),
+            max_cluster_sites,
+            seconds: start.elapsed().as_secs_f64(),
+            level,
+            compact,
+            big: true,
+        });
+    }
+    let level = match Level::build(lattice, name) {
+        Ok(level) => Ok(level),
+        Err(e @ LatticeError::ClusterTooLarge { .. }) => Err(e.to_string()),
+        Err(e) => return Err(e),
+    };
+    let big = level.as_ref().is_ok_and(|l| check_size(l).is_err());
+    Ok(Prepared {
+        name: name.to_string(),
+        max_cluster_sites,
+        seconds: start.elapsed().as_secs_f64(),
+        level,
+        compact: None,
+        big,
+    })
+}
+
+/// Find the Tc of a prepared level in field `field`; `start_below` is where the search
+/// starts ([`TcOptions::start_below`]). A level the engine refuses as too large is a
+/// [`TcOutcome::Refused`], one whose search fails a [`TcOutcome::Failed`].
+pub fn search(lattice: &Lattice, p: &Prepared, start_below: Option<f64>, field: f64) -> LevelTc {
+    let start = Instant::now();
+    let options = TcOptions {
+        start_below,
+        field,
+        ..TcOptions::default()
+    };
+    let outcome = match (&p.level, &p.compact) {
+        (_, Some(compact)) => {
+            match crate::big::critical_temperature_compact(lattice, compact, options) {
+                Ok(cp) => TcOutcome::Searched(Box::new(cp)),
+                Err(e) => TcOutcome::Failed(e.to_string()),
+            }
+        }
+        (Err(reason), None) => TcOutcome::Refused(reason.clone()),
+        (Ok(level), None) => match critical_temperature(lattice, level, options) {
+            Ok(cp) => TcOutcome::Searched(Box::new(cp)),
+            Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
+            Err(e) => TcOutcome::Failed(e.to_string()),
+        },
+    };
+    LevelTc {
+        level: p.name.clone(),
+        max_cluster_sites: p.max_cluster_sites,
+        variables: p.variables(),
+        seconds: p.seconds + start.elapsed().as_secs_f64(),
+        orbit_reduced: p.big,
+        outcome,
+    }
+}
+
+/// Where the search of a level of `sites` sites starts: 1 % above the lowest Tc of the
+/// smaller cluster rungs (two sites or more) in `done`, or `None` (mean field).
+fn start_below<'r>(done: impl Iterator<Item = &'r LevelTc>, sites: usize) -> Option<f64> {
+    done.filter(|r| r.max_cluster_sites >= 2 && r.max_cluster_sites < sites)
+        .filter_map(LevelTc::tc)
+        .reduce(f64::min)
+        .map(|t| 1.01 * t)
+}
+
+/// The critical point of every level in `names` (in that order) in the uniform field
+/// `field`, scheduled as `schedule`; `observe` hears each level's stages.
+///
+/// # Errors
+/// [`LevelsError::Lattice`] for a level that cannot be built (an unknown name);
+/// [`LevelsError::NothingComputed`] when every level was refused or failed (with one
+/// level refused among others, that level is a row with its reason instead).
+///
+/// ```
+/// use rungs_solve::levels::{no_progress, tc_levels, Schedule};
+/// let square = rungs_lattice::Lattice::from_yaml_str(
+///     "name: sq\ndimension: 2\nvectors: [[1, 0], [0, 1]]\nbasis: [{name: a}]\n\
+///      couplings: {J: 1}\nbonds: [{from: a, to: a, cell: [1, 0], coupling: J},\n\
+///      {from: a, to: a, cell: [0, 1], coupling: J}]\n",
+///     "sq.yaml",
+/// )?;
+/// let rows = tc_levels(&square, &["site".into(), "pair".into()], 0.0, Schedule::Parallel, &no_progress)?;
+/// // Mean field: Tc = z J = 4; Bethe: Tc = 2 / ln(z / (z − 2)) = 2 / ln 2
+/// // (Bethe 1935, Proc. R. Soc. A 150, 552).
+/// assert!((rows[0].tc().unwrap() - 4.0).abs() < 1e-6);
+/// assert!((rows[1].tc().unwrap() - 2.0 / 2f64.ln()).abs() < 1e-6);
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+pub fn tc_levels(
+    lattice: &Lattice,
+    names: &[String],
+    field: f64,
+    schedule: Schedule,
+    observe: &(dyn Fn(LevelEvent<'_>) + Sync),
+) -> Result<Vec<LevelTc>, LevelsError> {
+    let rows = match schedule {
+        Schedule::Parallel => parallel(lattice, names, field, observe)?,
+        Schedule::Chained => chained(lattice, names, field, observe)?,
+    };
+    if rows.iter().all(|r| r.failure().is_some()) {
+        return Err(LevelsError::NothingComputed {
+            reasons: rows
+                .iter()
+                .map(|r| (r.level.clone(), r.failure().unwrap_or_default().to_string()))
+                .collect(),
+        });
+    }
+    Ok(rows)
+}
+
+/// [`Schedule::Parallel`].
+fn parallel(
+    lattice: &Lattice,
+    names: &[String],
+    field: f64,
+    observe: &(dyn Fn(LevelEvent<'_>) + Sync),
+) -> Result<Vec<LevelTc>, LatticeError> {
+    let prepared = names
+        .par_iter()
+        .enumerate()
+        .map(|(index, name)| {
+            observe(LevelEvent::Stage {
+                index,
+                stage: "building clusters",
+            });
+            let p = prepare(lattice, name);
+            observe(LevelEvent::Waiting { index });
+            p
+        })
+        .collect::<Result<Vec<_>, _>>()?;
+    let mut rows = prepared
+        .par_iter()
+        .enumerate()
+        .map(|(index, p)| {
+            if p.big {
+                return None;
+            }
+            observe(LevelEvent::Stage {
+                index,
+                stage: "Tc search",
+            });
+            let row = search(lattice, p, None, field);
+            observe(LevelEvent::Finished {
+                index,
+                outcome: row.outcome_word(),
+            });
+            Some(row)
+        })
+        .collect::<Vec<_>>();
+    for (index, p) in prepared.iter().enumerate().filter(|(_, p)| p.big) {
+        let below = start_below(rows.iter().flatten(), p.max_cluster_sites);
+        observe(LevelEvent::Stage {
+            index,
+            stage: "Tc search on point-group orbits",
+        });
+        let row = search(lattice, p, below, field);
+        observe(LevelEvent::Finished {
+            index,
+            outcome: row.outcome_word(),
+        });
+        rows[index] = Some(row);
+    }
+    Ok(rows.into_iter().flatten().collect())
+}
+
+/// [`Schedule::Chained`].
+fn chained(
+    lattice: &Lattice,
+    names: &[String],
+    field: f64,
+    observe: &(dyn Fn(LevelEvent<'_>) + Sync),
+) -> Result<Vec<LevelTc>, LatticeError> {
+    let mut rows: Vec<LevelTc> = Vec::with_capacity(names.len());
+    for (index, name) in names.iter().enumerate() {
+        observe(LevelEvent::Stage {
+            index,
+            stage: "building clusters",
+        });
+        let p = prepare(lattice, name)?;
+        observe(LevelEvent::Stage {
+            index,
+            stage: if p.big {
+                "Tc search on point-group orbits"
+            } else {
+                "Tc search"
+            },
+        });
+        let row = search(
+            lattice,
+            &p,
+            start_below(rows.iter(), p.max_cluster_sites),
+            field,
+        );
+        observe(LevelEvent::Finished {
+            index,
+            outcome: row.outcome_word(),
+        });
+        rows.push(row);
+    }
+    Ok(rows)
+}
+
+#[cfg(test)]
+mod tests {
+    use std::sync::Mutex;
+
+    use super::*;
+
+    fn square() -> Lattice {
+        Lattice::from_yaml_str(
+            "name: sq\ndimension: 2\nvectors: [[1.0, 0.0], [0.0, 1.0]]\nbasis: [{name: a}]\n\
+             couplings: {J: 1.0}\nbonds: [{from: a, to: a, cell: [1, 0], coupling: J}, \
+             {from: a, to: a, cell: [0, 1], coupling: J}]\n\
+             clusters: {plaquette: [[[a, [0, 0]], [a, [1, 0]], [a, [0, 1]], [a, [1, 1]]]]}\n",
+            "sq.yaml",
+        )
+        .unwrap()
+    }
+
+    #[test]
+    fn both_schedules_find_the_same_critical_points() {
+        let lattice = square();
+        let names = sort_levels(&lattice, Level::names(&lattice)).unwrap();
+        assert_eq!(names, ["site", "pair", "plaquette"]);
+        let events = Mutex::new(Vec::new());
+        let record = |e: LevelEvent<'_>| {
+            if let LevelEvent::Finished { index, outcome } = e {
+                events.lock().unwrap().push((index, outcome.to_string()));
+            }
+        };
+        let parallel = tc_levels(&lattice, &names, 0.0, Schedule::Parallel, &record).unwrap();
+        let chained = tc_levels(&lattice, &names, 0.0, Schedule::Chained, &no_progress).unwrap();
+        // Mean field Tc = z J = 4 and Bethe Tc = 2/ln 2 (Bethe 1935, Proc. R. Soc. A 150,
+        // 552); the plaquette rung lies between the pair's and Onsager's 2.269 (Kikuchi
+        // 1951, Phys. Rev. 81, 988).
+        assert!((parallel[0].tc().unwrap() - 4.0).abs() < 1e-6);
+        assert!((parallel[1].tc().unwrap() - 2.0 / 2f64.ln()).abs() < 1e-6);
+        let plaquette = parallel[2].tc().unwrap();
+        assert!(plaquette < 2.0 / 2f64.ln() && plaquette > 2.269);
+        for (a, b) in parallel.iter().zip(&chained) {
+            assert!((a.tc().unwrap() / b.tc().unwrap() - 1.0).abs() < 1e-7);
+        }
+        let mut events = events.into_inner().unwrap();
+        events.sort();
+        assert_eq!(
+            events,
+            [(0, "done".into()), (1, "done".into()), (2, "done".into())]
+        );
+    }
+
+    #[test]
+    fn unknown_and_duplicate_names() {
+        let lattice = square();
+        let e = select_levels(&lattice, Some(&["plaquete".into()])).unwrap_err();
+        assert!(e.to_string().contains("plaquette"), "{e}");
+        let chosen = select_levels(&lattice, Some(&["pair".into(), " pair".into()])).unwrap();
+        assert_eq!(chosen, ["pair"]);
+    }
+}
