@@ -710,10 +710,12 @@ fn finish(
     let amplitude = (slope > 0.0 && norm > 0.0).then(|| proj.norm_sqr() / (norm * slope));
     // Degeneracy: the instability as low over the whole zone, or along a line through q.
     let mut ordering = ordering;
-    let zone_flat = d > 0
-        && zone_grid(d, 4)
-            .iter()
-            .all(|p| (qh.lowest_value(p) - mode.value).abs() < 1e-7);
+    // |λ(p) − λ*| < tol, by two Cholesky factorisations (cheaper than an eigensolve).
+    let level_with = |p: &Wavevector| {
+        qh.is_positive_definite_above(p, mode.value - 1e-7)
+            && !qh.is_positive_definite_above(p, mode.value + 1e-7)
+    };
+    let zone_flat = d > 0 && zone_grid(d, 4).iter().all(level_with);
     if zone_flat {
         notes.push(
             "the instability is degenerate over the whole zone (a flat band: every wavevector goes soft at this Tc, as for strongly frustrated couplings); the wavevector and pattern reported are one choice among many, and the ordered phase, if any, is not determined by this level".to_string(),
@@ -725,7 +727,7 @@ fn finish(
             for k in 0..d {
                 p[k] += s * dir[k];
             }
-            (qh.lowest_value(&p) - mode.value).abs() < 1e-7
+            level_with(&p)
         });
         if flat {
             ordering.flat_direction = Some(dir);
