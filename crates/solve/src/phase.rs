@@ -533,14 +533,22 @@ impl<'c> PhaseFollower<'c> {
         };
         let mut sol = minimise(&f, x0, &all, opts)?;
         for _ in 0..4 {
-            let Some(h) = f.hessian_block(&sol.x, &all.vars, &all.pos) else {
+            let h = if f.is_precise() {
+                f.hessian_block_precise(&sol.x, &all.vars, &all.pos)
+            } else {
+                f.hessian_block(&sol.x, &all.vars, &all.pos)
+            };
+            let Some(h) = h else {
                 break;
             };
+            // A minimum: the Hessian Newton factorised is positive definite.
+            if crate::linalg::positive_definite_real(&h) {
+                return Ok(sol.x);
+            }
             let Some((lam, v)) = crate::linalg::lowest_real(&h) else {
                 break;
             };
-            let scale = h.diagonal().amax().max(1e-300);
-            if lam > -1e-10 * scale {
+            if lam >= 0.0 {
                 return Ok(sol.x);
             }
             // Step along the negative curvature, as far as stays feasible and lowers F.
@@ -564,7 +572,11 @@ impl<'c> PhaseFollower<'c> {
             let Some(x) = moved else { break };
             sol = minimise(&f, x, &all, opts)?;
         }
-        Ok(sol.x)
+        Err(SolveError::NoStableState {
+            level: self.cell.level.name.clone(),
+            t,
+            h: self.field,
+        })
     }
 
     /// One continuation step of the ordered branch from `tw` to `t`. Flip probabilities
