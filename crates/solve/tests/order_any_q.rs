@@ -7,7 +7,9 @@ mod common;
 use common::*;
 use rungs_lattice::Lattice;
 use rungs_solve::phase::PhasePoint;
-use rungs_solve::{critical_temperature, sweep_level, ModeKind, SweepOptions, SweepPoint, TcOptions};
+use rungs_solve::{
+    critical_temperature, sweep_level, ModeKind, SweepOptions, SweepPoint, TcOptions,
+};
 
 /// A shipped lattice file with its couplings `J: 1.0` replaced by `J: j` and no reference.
 fn with_j(stem: &str, j: f64) -> Lattice {
@@ -71,7 +73,10 @@ fn square_antiferromagnet_ordered_phase_is_the_ferromagnets() {
         // Four sublattices of the 2×2 cell, alternating in sign.
         let m = &a.observables.sublattice_magnetization;
         assert_eq!(m.len(), 4);
-        assert!((m[0] + m[1]).abs() < 1e-10 && (m[0] - m[3]).abs() < 1e-10, "{m:?}");
+        assert!(
+            (m[0] + m[1]).abs() < 1e-10 && (m[0] - m[3]).abs() < 1e-10,
+            "{m:?}"
+        );
     }
 }
 
@@ -101,7 +106,10 @@ fn site_level_neel_line_in_a_field() {
         };
         let cp = critical_temperature(&anti, &site, options).unwrap();
         let tc = cp.tc.unwrap();
-        assert!((tc / expected - 1.0).abs() < 1e-8, "h = {h}: {tc} vs {expected}");
+        assert!(
+            (tc / expected - 1.0).abs() < 1e-8,
+            "h = {h}: {tc} vs {expected}"
+        );
         assert_eq!(cp.ordering.unwrap().wavevector, [0.5, 0.5, 0.0]);
     }
 }
@@ -132,7 +140,10 @@ fn chain_pair_susceptibility_keeps_its_precision_at_low_temperature() {
         let t = 0.1f64;
         let exact = (2.0 / t).exp() / t;
         let chi = p.observables.susceptibility;
-        assert!((chi / exact - 1.0).abs() < 1e-8, "{temps:?}: {chi} vs {exact}");
+        assert!(
+            (chi / exact - 1.0).abs() < 1e-8,
+            "{temps:?}: {chi} vs {exact}"
+        );
         // U = −J tanh(βJ) (Ising 1925).
         assert!((p.observables.energy + (1.0 / t).tanh()).abs() < 1e-14);
     }
@@ -147,7 +158,11 @@ fn ferromagnets_deep_in_the_ordered_phase_follow_the_low_temperature_expansion()
     // flips, O(e^{−4J/T}): below 2·10⁻⁵ here. Every level that treats a single flip
     // exactly must reproduce them, to that relative precision, at values of 10⁻¹¹.
     let ferro = with_j("square", 1.0);
-    for (name, tc) in [("site", 4.0), ("pair", 2.0 / 2f64.ln()), ("plaquette", 2.4256657)] {
+    for (name, tc) in [
+        ("site", 4.0),
+        ("pair", 2.0 / 2f64.ln()),
+        ("plaquette", 2.4256657),
+    ] {
         let t = 0.1 * tc;
         let p = &sweep(&ferro, name, &[t], 0.0)[0];
         let o = &p.observables;
@@ -155,10 +170,21 @@ fn ferromagnets_deep_in_the_ordered_phase_follow_the_low_temperature_expansion()
         let rel = |a: f64, b: f64| (a / b - 1.0).abs();
         // m itself is a double near 1: 1 − m only holds its digits above 10⁻¹⁶.
         let m_tol = 1e-4 + 2e-16 / (2.0 * eps);
-        assert!(rel(1.0 - o.magnetization, 2.0 * eps) < m_tol, "{name}: m = {}", o.magnetization);
+        assert!(
+            rel(1.0 - o.magnetization, 2.0 * eps) < m_tol,
+            "{name}: m = {}",
+            o.magnetization
+        );
         let tol = 2e-5;
-        assert!(rel(o.entropy, (1.0 + 8.0 / t) * eps) < tol, "{name}: S = {}", o.entropy);
-        assert!(rel(o.specific_heat, (8.0 / t).powi(2) * eps) < tol, "{name}: C");
+        assert!(
+            rel(o.entropy, (1.0 + 8.0 / t) * eps) < tol,
+            "{name}: S = {}",
+            o.entropy
+        );
+        assert!(
+            rel(o.specific_heat, (8.0 / t).powi(2) * eps) < tol,
+            "{name}: C"
+        );
         assert!(rel(o.susceptibility, 4.0 * eps / t) < tol, "{name}: χ");
         assert!(p.notes.is_empty(), "{name}: {:?}", p.notes);
     }
@@ -193,11 +219,21 @@ fn fcc_antiferromagnet_orders_on_the_x_w_line() {
     mags = mags.iter().map(|m| 1.0 - m).collect();
     mags.sort_by(|a, b| b.total_cmp(a));
     assert!((mags[0] - 1.0).abs() < 1e-9, "{k:?} → {mags:?}");
-    assert!(mags[1] <= 0.5 + 1e-9 && mags[2].abs() < 1e-9, "{k:?} → {mags:?}");
+    assert!(
+        mags[1] <= 0.5 + 1e-9 && mags[2].abs() < 1e-9,
+        "{k:?} → {mags:?}"
+    );
     assert_eq!(cp.kind, ModeKind::Staggered);
     assert!(o.flat_direction.is_some());
-    assert!(cp.notes.iter().any(|n| n.contains("degenerate")), "{:?}", cp.notes);
-    assert!(cp.notes.iter().any(|n| n.contains("first-order") && n.contains("rungs phases")));
+    assert!(
+        cp.notes.iter().any(|n| n.contains("degenerate")),
+        "{:?}",
+        cp.notes
+    );
+    assert!(cp
+        .notes
+        .iter()
+        .any(|n| n.contains("first-order") && n.contains("rungs phases")));
 }
 
 #[test]
@@ -209,7 +245,11 @@ fn bethe_on_the_triangular_antiferromagnet_says_its_entropy_went_negative() {
     let tri = with_j("triangular", -1.0);
     let p = &sweep(&tri, "pair", &[0.2], 0.0)[0];
     assert!(p.observables.entropy < -1.0);
-    assert!(p.notes.iter().any(|n| n.contains("negative entropy")), "{:?}", p.notes);
+    assert!(
+        p.notes.iter().any(|n| n.contains("negative entropy")),
+        "{:?}",
+        p.notes
+    );
 }
 
 #[test]
