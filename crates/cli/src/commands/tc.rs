@@ -25,7 +25,7 @@ use rayon::prelude::*;
 use rungs_lattice::{CompactLevel, Lattice, LatticeError, Level, MAX_MATERIALISED_SITES};
 use rungs_reference::closed::ClosedForm;
 use rungs_solve::functional::check_size;
-use rungs_solve::{critical_temperature, CriticalPoint, SolveError, TcOptions};
+use rungs_solve::{critical_temperature_observed, CriticalPoint, SolveError, TcOptions};
 
 use crate::args::TcArgs;
 use crate::error::CliError;
@@ -95,7 +95,7 @@ pub fn run(args: &TcArgs, out: &mut Output) -> Result<(), CliError> {
                 return None;
             }
             line.stage("Tc search");
-            let row = search(&lattice, p, None, field);
+            let row = search(&lattice, p, None, field, &line.observer());
             line.finish();
             progress.inc(1);
             Some(row)
@@ -110,7 +110,13 @@ pub fn run(args: &TcArgs, out: &mut Output) -> Result<(), CliError> {
             .reduce(f64::min)
             .map(|t| 1.01 * t);
         lines[i].stage("Tc search on point-group orbits");
-        rows[i] = Some(search(&lattice, p, start_below, field));
+        rows[i] = Some(search(
+            &lattice,
+            p,
+            start_below,
+            field,
+            &lines[i].observer(),
+        ));
         lines[i].finish();
         progress.inc(1);
     }
@@ -251,7 +257,13 @@ pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, CliError> {
 /// of a big level starts (`TcOptions::start_below`). A level the engine refuses as too
 /// large is a [`TcOutcome::Refused`], one whose search fails a [`TcOutcome::Failed`]:
 /// the other levels still print.
-pub fn search(lattice: &Lattice, p: &Prepared, start_below: Option<f64>, field: f64) -> LevelTc {
+pub fn search(
+    lattice: &Lattice,
+    p: &Prepared,
+    start_below: Option<f64>,
+    field: f64,
+    observe: &(dyn Fn(&str) + Sync),
+) -> LevelTc {
     let start = Instant::now();
     let options = TcOptions {
         start_below,
@@ -266,11 +278,13 @@ pub fn search(lattice: &Lattice, p: &Prepared, start_below: Option<f64>, field: 
             }
         }
         (Err(reason), None) => TcOutcome::Refused(reason.clone()),
-        (Ok(level), None) => match critical_temperature(lattice, level, options) {
-            Ok(cp) => TcOutcome::Searched(Box::new(cp)),
-            Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
-            Err(e) => TcOutcome::Failed(e.to_string()),
-        },
+        (Ok(level), None) => {
+            match critical_temperature_observed(lattice, level, options, observe) {
+                Ok(cp) => TcOutcome::Searched(Box::new(cp)),
+                Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
+                Err(e) => TcOutcome::Failed(e.to_string()),
+            }
+        }
     };
     LevelTc {
         level: p.name.clone(),
