@@ -11,7 +11,8 @@ use rungs_lattice::Lattice;
 /// Math. Phys. 6, 121; Ruozzi 2012, NIPS 25, 117; Fisher 1967).
 pub const NOT_BOUNDS_NOTE: &str =
     "bounds: `site` gives F_site ≥ F_exact for any couplings and field (Bogoliubov inequality) \
-     and, for ferromagnets (all J ≥ 0), Tc_site ≥ Tc_exact (Griffiths 1967, Commun. Math. Phys. \
+     and, for ferromagnets (all J ≥ 0, or unfrustrated couplings at h = 0, which a change of \
+     spin signs makes ferromagnetic), Tc_site ≥ Tc_exact (Griffiths 1967, Commun. Math. Phys. \
      6, 121); `pair` gives, for ferromagnets, F_pair ≥ F_exact in any field (Ruozzi 2012, NIPS \
      25, 117) and Tc_pair ≥ Tc_exact (correlations bounded by non-backtracking walks: Fisher \
      1967; Saade, Krzakala & Zdeborová 2016, arXiv:1609.08269). Larger clusters are \
@@ -42,8 +43,7 @@ pub const ONE_D_ROW: &str = "artefact: no order at T > 0 in 1D";
 /// # Ok::<(), rungs_lattice::LatticeError>(())
 /// ```
 pub fn order_note(lattice: &Lattice) -> String {
-    let antiferro = lattice.bonds().iter().any(|b| b.j < 0.0);
-    let frustrated = antiferro && !lattice.is_bipartite();
+    let frustrated = lattice.is_frustrated();
     let base = "each level's instability is sought at every wavevector q, so order that breaks the \
                 cell's translations (Néel order, superstructures) is found without a supercell; q is in \
                 units of the reciprocal primitive vectors, and `supercell` is the smallest diagonal cell \
@@ -51,7 +51,7 @@ pub fn order_note(lattice: &Lattice) -> String {
         .to_string();
     if frustrated {
         format!(
-            "IMPORTANT: antiferromagnetic couplings on a non-bipartite (frustrated) lattice. Cluster \
+            "IMPORTANT: frustrated couplings (no change of spin signs makes every bond ferromagnetic). Cluster \
              approximations may predict order where the exact model has none (the triangular and kagome \
              antiferromagnets have no transition at any T > 0: Wannier 1950, Phys. Rev. 79, 357; Kanô & \
              Naya 1953, Prog. Theor. Phys. 10, 158). {}",

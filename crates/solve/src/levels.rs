@@ -23,7 +23,7 @@ use rungs_lattice::{CompactLevel, Lattice, LatticeError, Level, MAX_MATERIALISED
 use thiserror::Error;
 
 use crate::functional::check_size;
-use crate::{critical_temperature, CriticalPoint, SolveError, TcOptions};
+use crate::{critical_temperature_observed, CriticalPoint, SolveError, TcOptions};
 
 /// How the levels are scheduled.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -270,9 +270,17 @@ pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, LatticeError> 
 }
 
 /// Find the Tc of a prepared level in field `field`; `start_below` is where the search
-/// starts ([`TcOptions::start_below`]). A level the engine refuses as too large is a
-/// [`TcOutcome::Refused`], one whose search fails a [`TcOutcome::Failed`].
-pub fn search(lattice: &Lattice, p: &Prepared, start_below: Option<f64>, field: f64) -> LevelTc {
+/// starts ([`TcOptions::start_below`]); `observe` hears the stages of a dense search
+/// ([`critical_temperature_observed`]: stepping down, root, wavevector check). A level
+/// the engine refuses as too large is a [`TcOutcome::Refused`], one whose search fails a
+/// [`TcOutcome::Failed`].
+pub fn search(
+    lattice: &Lattice,
+    p: &Prepared,
+    start_below: Option<f64>,
+    field: f64,
+    observe: &(dyn Fn(&str) + Sync),
+) -> LevelTc {
     let start = Instant::now();
     let options = TcOptions {
         start_below,
@@ -287,11 +295,13 @@ pub fn search(lattice: &Lattice, p: &Prepared, start_below: Option<f64>, field: 
             }
         }
         (Err(reason), None) => TcOutcome::Refused(reason.clone()),
-        (Ok(level), None) => match critical_temperature(lattice, level, options) {
-            Ok(cp) => TcOutcome::Searched(Box::new(cp)),
-            Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
-            Err(e) => TcOutcome::Failed(e.to_string()),
-        },
+        (Ok(level), None) => {
+            match critical_temperature_observed(lattice, level, options, observe) {
+                Ok(cp) => TcOutcome::Searched(Box::new(cp)),
+                Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
+                Err(e) => TcOutcome::Failed(e.to_string()),
+            }
+        }
     };
     LevelTc {
         level: p.name.clone(),
@@ -388,7 +398,8 @@ fn parallel(
                 index,
                 stage: "Tc search",
             });
-            let row = search(lattice, p, None, field);
+            let stage = |stage: &str| observe(LevelEvent::Stage { index, stage });
+            let row = search(lattice, p, None, field, &stage);
             observe(LevelEvent::Finished {
                 index,
                 outcome: row.outcome_word(),
@@ -402,7 +413,8 @@ fn parallel(
             index,
             stage: "Tc search on point-group orbits",
         });
-        let row = search(lattice, p, below, field);
+        let stage = |stage: &str| observe(LevelEvent::Stage { index, stage });
+        let row = search(lattice, p, below, field, &stage);
         observe(LevelEvent::Finished {
             index,
             outcome: row.outcome_word(),
@@ -434,11 +446,13 @@ fn chained(
                 "Tc search"
             },
         });
+        let stage = |stage: &str| observe(LevelEvent::Stage { index, stage });
         let row = search(
             lattice,
             &p,
             start_below(rows.iter(), p.max_cluster_sites),
             field,
+            &stage,
         );
         observe(LevelEvent::Finished {
             index,
