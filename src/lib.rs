@@ -47,7 +47,7 @@ pub use rungs_reference::closed::ClosedForm;
 pub use rungs_reference::ladder::{
     Extrapolated, Ladder, LadderError, LadderOptions, ReferenceKind, ReferenceTc, RungResult,
 };
-pub use rungs_reference::montecarlo::{McConfig, McError, McPoint, McResult};
+pub use rungs_reference::montecarlo::{McConfig, McError, McPoint, McReport, McResult};
 pub use rungs_reference::tc_report::{Reference, TcReport, TcRow};
 pub use rungs_solve::levels::LevelsError;
 pub use rungs_solve::phase::Branch;

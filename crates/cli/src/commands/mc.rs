@@ -15,8 +15,8 @@
 //! column says so (`susceptibility_abs_m`), JSON keeps the contract's `susceptibility`
 //! and states both definitions under `definitions`.
 
-use rungs_reference::montecarlo::{self, McConfig, McError, McResult, RunPlan};
-use serde_json::{json, Value};
+use rungs_reference::montecarlo::{self, McConfig, McError, McReport, RunPlan};
+use serde_json::Value;
 
 use crate::args::McArgs;
 use crate::error::CliError;
@@ -25,12 +25,6 @@ use crate::progress::{seconds, Progress};
 
 /// Table header of the Monte Carlo susceptibility: not `sweep`'s χ = ∂m/∂h.
 pub const CHI_PRIME: &str = "χ′ = N(⟨m²⟩−⟨|m|⟩²)/T";
-
-/// What the specific heat and the susceptibility of `mc` are (JSON `definitions`).
-pub const DEFINITIONS: [(&str, &str); 2] = [
-    ("specific_heat", "N(<e^2> - <e>^2)/T^2, from energy fluctuations; the same quantity as sweep's C = dU/dT"),
-    ("susceptibility", "N(<m^2> - <|m|>^2)/T, from fluctuations of |m| (chi prime); not sweep's dm/dh, which is larger above Tc"),
-];
 
 /// Run `rungs mc`.
 pub fn run(args: &McArgs, out: &mut Output) -> Result<(), CliError> {
@@ -88,43 +82,11 @@ fn mc_error(e: McError) -> CliError {
     CliError::Usage(format!("Monte Carlo: {e}"))
 }
 
-/// The `mc` result for the exporters.
-struct McReport {
-    lattice: String,
-    dimension: usize,
-    result: McResult,
-}
-
 impl Report for McReport {
+    /// The library result's own serialization (`rungs_reference::montecarlo::McReport`),
+    /// the same that the Python package returns.
     fn json(&self) -> Result<Value, serde_json::Error> {
-        let points: Vec<Value> = self
-            .result
-            .points
-            .iter()
-            .map(|p| {
-                json!({
-                    "size": p.size, "sites": p.sites, "temperature": p.temperature,
-                    "energy": p.energy, "energy_error": p.energy_error,
-                    "abs_magnetization": p.abs_magnetization, "abs_magnetization_error": p.abs_magnetization_error,
-                    "binder": p.binder, "binder_error": p.binder_error,
-                    "specific_heat": p.specific_heat, "susceptibility": p.susceptibility,
-                    "specific_heat_error": p.specific_heat_error, "susceptibility_error": p.susceptibility_error,
-                    "algorithm": p.algorithm.name(), "errors_converged": p.errors_converged,
-                    "spins_flipped": p.spins_flipped, "seconds": p.seconds,
-                })
-            })
-            .collect();
-        let tc = self.result.tc_estimate.as_ref().map(|t| {
-            json!({"tc": t.tc, "tc_error": t.tc_error, "method": t.method,
-                   "crossings": t.crossings.iter().map(|c| json!({
-                       "size_small": c.size_small, "size_large": c.size_large, "tc": c.tc, "tc_error": c.tc_error,
-                   })).collect::<Vec<_>>()})
-        });
-        Ok(json!({
-            "lattice": self.lattice, "seed": self.result.seed, "sizes": self.result.sizes,
-            "points": points, "tc_estimate": tc,
-            "definitions": DEFINITIONS.iter().map(|(k, v)| ((*k).to_string(), json!(v))).collect::<serde_json::Map<_, _>>(),
-        }))
+        serde_json::to_value(self)
     }
 
     fn csv(&self) -> Grid {

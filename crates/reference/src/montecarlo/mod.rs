@@ -9,7 +9,8 @@
 //! * [`binder`]: the critical temperature from Binder-cumulant crossings;
 //! * [`budget`]: the arguments checked and the memory and work of a run estimated
 //!   before anything is built;
-//! * [`run`]: the driver over sizes × temperatures, parallel and reproducible.
+//! * [`run`]: the driver over sizes × temperatures, parallel and reproducible;
+//! * [`report`]: a run as a reportable result (the JSON of `rungs mc`).
 //!
 //! Units as in the whole crate: k_B = 1, `H = -Σ J s_i s_j - h Σ s_i`, energies and
 //! magnetisations per site. A *sweep* is a unit of work that flips, on average, as many
@@ -41,6 +42,7 @@ pub mod error;
 pub mod metropolis;
 pub mod neighbours;
 pub mod observables;
+pub mod report;
 pub mod rng;
 pub mod run;
 pub mod wolff;
@@ -51,6 +53,7 @@ pub use error::McError;
 pub use metropolis::Metropolis;
 pub use neighbours::Neighbours;
 pub use observables::{BinnedSeries, Estimates};
+pub use report::McReport;
 pub use run::{
     run, run_systems, simulate_point, Algorithm, McConfig, McPoint, McResult, Progress, System,
 };
