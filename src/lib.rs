@@ -32,6 +32,8 @@
 //! cluster-variation engine), [`mod@reference`] (exact results, Monte Carlo, the ladder) and,
 //! with the default `cli` feature, `cli` (the `rungs` command).
 
+#![warn(missing_docs)]
+
 use std::path::Path;
 
 use thiserror::Error;

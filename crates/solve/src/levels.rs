@@ -3,7 +3,7 @@
 //!
 //! Each level is built ([`prepare`]) as a dense [`Level`], or — when its clusters exceed
 //! [`MAX_MATERIALISED_SITES`] — only on point-group orbits ([`CompactLevel`]); then its
-//! Tc is searched ([`search`]) with [`critical_temperature`] or, on orbits,
+//! Tc is searched ([`search`]) with [`crate::critical_temperature`] or, on orbits,
 //! [`crate::big::critical_temperature_compact`]. A level the engine refuses (too large)
 //! or whose search fails stays in the result as a row with its reason
 //! ([`TcOutcome`]); [`tc_levels`] fails only when no level gives a result at all.

@@ -1,5 +1,5 @@
 //! What a Monte Carlo run will cost, known before anything is allocated: [`plan`] checks
-//! every argument of [`super::run`] (sizes, temperatures, sweeps, field, algorithm) and
+//! every argument of [`super::run()`] (sizes, temperatures, sweeps, field, algorithm) and
 //! estimates the peak memory and the work of the run from the lattice's cell alone, so a
 //! request that cannot fit is refused in microseconds instead of aborting the process
 //! when an allocation of hundreds of gigabytes fails.
@@ -56,7 +56,7 @@ pub const NS_PER_SITE_UPDATE: f64 = 15.0;
 /// The cost of a run, as estimated by [`plan`].
 #[derive(Debug, Clone, PartialEq)]
 pub struct RunPlan {
-    /// Linear sizes, sorted, duplicates dropped (as [`super::run`] simulates them).
+    /// Linear sizes, sorted, duplicates dropped (as [`super::run()`] simulates them).
     pub sizes: Vec<usize>,
     /// Sites of each torus, in the order of `sizes`.
     pub sites: Vec<u64>,
@@ -71,7 +71,7 @@ pub struct RunPlan {
 /// Check the arguments of a run of `lattice` on `L × … × L` tori for every `L` in
 /// `sizes` with `config`, and estimate its peak memory and work (module docs) on
 /// `threads` worker threads — without building anything. Refuses what
-/// [`super::run`] would refuse, and a run whose peak memory would exceed [`MAX_BYTES`]
+/// [`super::run()`] would refuse, and a run whose peak memory would exceed [`MAX_BYTES`]
 /// ([`McError::TooMuchMemory`]) or whose torus would exceed [`MAX_SITES`].
 ///
 /// ```

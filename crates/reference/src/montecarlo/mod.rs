@@ -9,7 +9,7 @@
 //! * [`binder`]: the critical temperature from Binder-cumulant crossings;
 //! * [`budget`]: the arguments checked and the memory and work of a run estimated
 //!   before anything is built;
-//! * [`run`]: the driver over sizes × temperatures, parallel and reproducible;
+//! * [`mod@run`]: the driver over sizes × temperatures, parallel and reproducible;
 //! * [`report`]: a run as a reportable result (the JSON of `rungs mc`).
 //!
 //! Units as in the whole crate: k_B = 1, `H = -Σ J s_i s_j - h Σ s_i`, energies and
