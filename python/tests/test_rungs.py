@@ -121,7 +121,14 @@ def test_tc_on_a_supercell_and_in_a_field_match_the_cli(cli, lattices):
     rows = rungs.tc(square, levels=["pair"], supercell=[2, 1], field=0.0)
     doc = cli.json(["tc", "lattices/square.yaml", "--levels", "pair", "--supercell", "2x1"])
     assert close(rows[0]["tc"], doc["levels"][0]["tc"])
+    # Enlarging the cell does not change the model: Bethe's 2/ln 2 again.
     assert math.isclose(rows[0]["tc"], 2.0 / math.log(2.0), rel_tol=1e-7)
+    # A uniform field: the ferromagnet has no transition (common practice), and the
+    # rows say so as the command's do.
+    rows = rungs.tc(square, levels=["site", "pair"], field=0.5)
+    doc = cli.json(["tc", "lattices/square.yaml", "--levels", "site,pair", "--field", "0.5"])
+    assert [r["tc"] for r in rows] == [r["tc"] for r in doc["levels"]] == [None, None]
+    assert [r["note"] for r in rows] == [r["note"] for r in doc["levels"]]
 
 
 # --- sweep -----------------------------------------------------------------------------
