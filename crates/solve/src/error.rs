@@ -7,7 +7,7 @@ use thiserror::Error;
 #[non_exhaustive]
 pub enum SolveError {
     /// Newton and its fallback stopped before the gradient norm reached the tolerance.
-    #[error("level `{level}` at T = {t}, h = {h}: equilibrium not reached after {iterations} iterations (gradient norm {gradient_norm:.3e}, tolerance {tolerance:.1e}); try a temperature path that starts farther from Tc")]
+    #[error("level `{level}` at T = {t}, h = {h}: equilibrium not reached after {iterations} iterations (gradient norm {gradient_norm:.3e}, tolerance {tolerance:.1e}); the level has no well-conditioned state here: near a transition, approach the point along a path of nearby temperatures; far below any transition, the cluster probabilities of this state may be beyond double precision")]
     NotConverged {
         /// Level name.
         level: String,
