@@ -18,6 +18,7 @@ pub mod extrapolate;
 pub mod functional;
 pub mod krylov;
 pub mod linalg;
+pub mod order_parameter;
 pub mod ordering;
 pub mod phase;
 pub mod qspace;

@@ -1,35 +1,50 @@
-//! `rungs mc LATTICE --sizes 8,16,32 --temps ... [--sweeps N] [--warmup N] [--seed S]`:
-//! Monte Carlo on finite periodic tori of the lattice (L cells along every primitive
-//! vector), with a Binder-cumulant crossing estimate of Tc.
+//! `rungs mc LATTICE --sizes 8,16,32 --temps ... [--sweeps N] [--warmup N] [--seed S]
+//! [--order auto|uniform|Q]`: Monte Carlo on finite periodic tori of the lattice (L cells
+//! along every primitive vector), measuring the lattice's order parameter, with a
+//! Binder-cumulant crossing estimate of Tc.
 //!
-//! Wolff cluster updates (Wolff 1989, Phys. Rev. Lett. 62, 361) where every coupling is
-//! ferromagnetic and h = 0, Metropolis otherwise. A sweep flips, on average, as many
-//! spins as the torus has sites (Metropolis: one attempted flip per site). Each
-//! (size, temperature) point is seeded from (seed, size, temperature index), so the
-//! same seed gives the same numbers however the points are scheduled.
+//! The order parameter (`rungs_solve::order_parameter`) is the projection of the spins
+//! on the lattice's ordering pattern: the uniform magnetisation for a ferromagnet, the
+//! staggered one for Néel order, the length over the star of q otherwise. Sizes that
+//! its pattern does not tile are rounded up to multiples of its period, and the output
+//! says so. Wolff cluster updates (Wolff 1989, Phys. Rev. Lett. 62, 361) where every
+//! coupling is ferromagnetic, or becomes so by flipping a sublattice, and h = 0;
+//! Metropolis otherwise. Each (size, temperature) point is seeded from (seed, size,
+//! temperature index), so the same seed gives the same numbers however the points are
+//! scheduled.
 //!
 //! Every argument is checked, and the run's memory and time estimated, before any torus
 //! is built (`rungs_reference::montecarlo::plan`): a torus too large for memory is
 //! refused with exit status 2 naming the limit. The susceptibility reported is
-//! χ′ = N(⟨m²⟩ − ⟨|m|⟩²)/T ([`CHI_PRIME`]), which is not `sweep`'s χ = ∂m/∂h; the CSV
+//! χ′ = N(⟨M²⟩ − ⟨|M|⟩²)/T ([`CHI_PRIME`]), which is not `sweep`'s χ = ∂m/∂h; the CSV
 //! column says so (`susceptibility_abs_m`), JSON keeps the contract's `susceptibility`
-//! and states both definitions under `definitions`.
+//! and states both definitions under `definitions`. No Tc is reported when the Binder
+//! curves do not cross as an ordering transition's do, or when the ordering is
+//! degenerate (frustration): `tc_estimate` is null and `note` says why.
 
-use rungs_reference::montecarlo::{self, McConfig, McError, McResult, RunPlan};
+use rungs_lattice::Lattice;
+use rungs_reference::montecarlo::{
+    self, assess_tc, Algorithm, McConfig, McError, McResult, Order, RunPlan, TcAssessment,
+};
+use rungs_solve::order_parameter::{expected, OrderParameter};
+use rungs_solve::tc::fmt_vec;
 use serde_json::{json, Value};
 
-use crate::args::McArgs;
+use crate::args::{McArgs, OrderChoice};
 use crate::error::CliError;
 use crate::output::{num, Block, Grid, Output, Report, TextDoc};
 use crate::progress::{seconds, Progress};
 
 /// Table header of the Monte Carlo susceptibility: not `sweep`'s χ = ∂m/∂h.
-pub const CHI_PRIME: &str = "χ′ = N(⟨m²⟩−⟨|m|⟩²)/T";
+pub const CHI_PRIME: &str = "χ′ = N(⟨M²⟩−⟨|M|⟩²)/T";
 
-/// What the specific heat and the susceptibility of `mc` are (JSON `definitions`).
-pub const DEFINITIONS: [(&str, &str); 2] = [
+/// What the specific heat, the susceptibility and the order parameter of `mc` are (JSON
+/// `definitions`).
+pub const DEFINITIONS: [(&str, &str); 4] = [
     ("specific_heat", "N(<e^2> - <e>^2)/T^2, from energy fluctuations; the same quantity as sweep's C = dU/dT"),
-    ("susceptibility", "N(<m^2> - <|m|>^2)/T, from fluctuations of |m| (chi prime); not sweep's dm/dh, which is larger above Tc"),
+    ("susceptibility", "N(<M^2> - <|M|>^2)/T, from fluctuations of the order parameter |M| (chi prime); for uniform order not sweep's dm/dh, which is larger above Tc"),
+    ("abs_magnetization", "<|M|>, the order parameter: M_c = (1/N) sum_i w_c,i s_i projected on the ordering pattern (`order`), |M| the length over its components; |m| for uniform order. Also given as order_parameter; uniform_magnetization is <|m|> of the plain magnetisation"),
+    ("binder", "U4 = 1 - <M^4>/(3<M^2>^2) of the order parameter (Binder 1981); also given as binder_order"),
 ];
 
 /// Run `rungs mc`.
@@ -42,11 +57,17 @@ pub fn run(args: &McArgs, out: &mut Output) -> Result<(), CliError> {
         seed: args.seed,
         ..McConfig::default()
     };
+    let parameter = order_parameter(&lattice, &args.order)?;
+    let order = Order::from_weights(&lattice, parameter.period, parameter.components.clone())
+        .map_err(mc_error)?;
+    let mut notes = parameter.notes.clone();
+    let sizes = fit_sizes(&order, &args.sizes.0, &mut notes);
     // Every argument checked and the memory estimated before any torus is built.
     let plan = montecarlo::plan(
         &lattice,
-        &args.sizes.0,
+        &sizes,
         &config,
+        &order,
         rayon::current_num_threads(),
     )
     .map_err(mc_error)?;
@@ -57,13 +78,82 @@ pub fn run(args: &McArgs, out: &mut Output) -> Result<(), CliError> {
     );
     let observer = progress.observer();
     let result =
-        montecarlo::run(&lattice, &args.sizes.0, &config, Some(&observer)).map_err(mc_error)?;
+        montecarlo::run(&lattice, &sizes, &config, &order, Some(&observer)).map_err(mc_error)?;
     progress.finish();
+    let assessment = assess_tc(result.tc_estimate.as_ref(), parameter.degenerate.as_deref());
     out.emit(&McReport {
         lattice: lattice.name().to_string(),
         dimension: lattice.dimension(),
+        algorithm: algorithm_summary(&result),
+        parameter,
+        assessment,
+        notes,
         result,
     })
+}
+
+/// The order parameter asked for: the lattice's own, the uniform magnetisation, or the
+/// ordering at a given wavevector.
+pub fn order_parameter(
+    lattice: &Lattice,
+    choice: &OrderChoice,
+) -> Result<OrderParameter, CliError> {
+    Ok(match choice {
+        OrderChoice::Auto => expected(lattice),
+        OrderChoice::Uniform => OrderParameter::uniform(lattice),
+        OrderChoice::Wavevector(q) => {
+            let d = lattice.dimension();
+            if q[d..].iter().any(|&c| c != 0.0) {
+                return Err(CliError::Usage(format!(
+                    "--order: the lattice is {d}-dimensional; give {d} wavevector components"
+                )));
+            }
+            OrderParameter::at_wavevector(lattice, q)
+        }
+    })
+}
+
+/// Each size rounded up to a multiple of the order's period (sorted, duplicates
+/// dropped), with a note when any changed.
+pub fn fit_sizes(order: &Order, sizes: &[usize], notes: &mut Vec<String>) -> Vec<usize> {
+    let mut fitted: Vec<usize> = sizes.iter().map(|&l| order.fit_size(l)).collect();
+    fitted.sort_unstable();
+    fitted.dedup();
+    let changed: Vec<String> = sizes
+        .iter()
+        .filter(|&&l| order.fit_size(l) != l)
+        .map(|&l| format!("{l} → {}", order.fit_size(l)))
+        .collect();
+    if !changed.is_empty() {
+        notes.push(format!(
+            "sizes rounded up to multiples of {} cells, the period of the ordering pattern measured: {}",
+            order.period(),
+            changed.join(", ")
+        ));
+    }
+    fitted
+}
+
+/// Which update ran, in words: `wolff`, `wolff (sublattice gauge)`, `metropolis`, or a
+/// list when sizes differ.
+fn algorithm_summary(result: &McResult) -> String {
+    let mut names: Vec<String> = Vec::new();
+    for p in &result.points {
+        let name = point_algorithm(p.algorithm, p.gauged);
+        if !names.contains(&name) {
+            names.push(name);
+        }
+    }
+    names.join(", ")
+}
+
+/// The update of one point in words.
+fn point_algorithm(algorithm: Algorithm, gauged: bool) -> String {
+    if gauged {
+        format!("{} (sublattice gauge)", algorithm.name())
+    } else {
+        algorithm.name().to_string()
+    }
 }
 
 /// The progress label of a run: what is simulated and the rough cost, e.g.
@@ -92,37 +182,67 @@ fn mc_error(e: McError) -> CliError {
 struct McReport {
     lattice: String,
     dimension: usize,
+    algorithm: String,
+    parameter: OrderParameter,
+    assessment: TcAssessment,
+    notes: Vec<String>,
     result: McResult,
+}
+
+impl McReport {
+    /// The measured wavevector, `dimension` components.
+    fn wavevector(&self) -> Vec<f64> {
+        self.parameter.wavevector[..self.dimension].to_vec()
+    }
 }
 
 impl Report for McReport {
     fn json(&self) -> Result<Value, serde_json::Error> {
-        let points: Vec<Value> = self
+        let points = self
             .result
             .points
             .iter()
             .map(|p| {
-                json!({
-                    "size": p.size, "sites": p.sites, "temperature": p.temperature,
-                    "energy": p.energy, "energy_error": p.energy_error,
-                    "abs_magnetization": p.abs_magnetization, "abs_magnetization_error": p.abs_magnetization_error,
-                    "binder": p.binder, "binder_error": p.binder_error,
-                    "specific_heat": p.specific_heat, "susceptibility": p.susceptibility,
-                    "specific_heat_error": p.specific_heat_error, "susceptibility_error": p.susceptibility_error,
-                    "algorithm": p.algorithm.name(), "errors_converged": p.errors_converged,
-                    "spins_flipped": p.spins_flipped, "seconds": p.seconds,
-                })
+                let mut v = serde_json::to_value(p)?;
+                if let Value::Object(map) = &mut v {
+                    let e = &p.estimates;
+                    for (key, value) in [
+                        ("order_parameter", e.abs_magnetization),
+                        ("order_parameter_error", e.abs_magnetization_error),
+                        ("binder_order", e.binder),
+                        ("binder_order_error", e.binder_error),
+                        ("susceptibility_order", e.susceptibility),
+                        ("susceptibility_order_error", e.susceptibility_error),
+                    ] {
+                        map.insert(key.into(), json!(value));
+                    }
+                }
+                Ok(v)
             })
-            .collect();
-        let tc = self.result.tc_estimate.as_ref().map(|t| {
+            .collect::<Result<Vec<Value>, serde_json::Error>>()?;
+        let tc = self.assessment.tc_estimate.as_ref().map(|t| {
             json!({"tc": t.tc, "tc_error": t.tc_error, "method": t.method,
                    "crossings": t.crossings.iter().map(|c| json!({
                        "size_small": c.size_small, "size_large": c.size_large, "tc": c.tc, "tc_error": c.tc_error,
                    })).collect::<Vec<_>>()})
         });
+        let d = self.dimension;
+        let op = &self.parameter;
+        let order = json!({
+            "wavevector": self.wavevector(),
+            "star": op.star.iter().map(|q| q[..d].to_vec()).collect::<Vec<_>>(),
+            "pattern": op.pattern(),
+            "components": op.components(),
+            "period": op.period,
+            "source": op.source.as_str(),
+            "degenerate": op.degenerate,
+            "description": op.describe(),
+        });
         Ok(json!({
             "lattice": self.lattice, "seed": self.result.seed, "sizes": self.result.sizes,
-            "points": points, "tc_estimate": tc,
+            "points": points, "tc_estimate": tc, "note": self.assessment.note,
+            "order": order, "wavevector": self.wavevector(), "algorithm": self.algorithm,
+            "notes": self.notes,
             "definitions": DEFINITIONS.iter().map(|(k, v)| ((*k).to_string(), json!(v))).collect::<serde_json::Map<_, _>>(),
         }))
     }
@@ -144,24 +264,43 @@ impl Report for McReport {
             "susceptibility_abs_m_error",
             "spins_flipped",
             "seconds",
+            "order_parameter",
+            "order_parameter_error",
+            "binder_order",
+            "binder_order_error",
+            "uniform_magnetization",
+            "uniform_magnetization_error",
+            "algorithm",
+            "wavevector",
         ]);
+        let q: Vec<String> = self.wavevector().iter().map(|&c| num(c)).collect();
+        let q = q.join(" ");
         for p in &self.result.points {
+            let e = &p.estimates;
             grid.push([
                 p.size.to_string(),
                 p.sites.to_string(),
                 num(p.temperature),
-                num(p.energy),
-                num(p.energy_error),
-                num(p.abs_magnetization),
-                num(p.abs_magnetization_error),
-                num(p.binder),
-                num(p.binder_error),
-                num(p.specific_heat),
-                num(p.specific_heat_error),
-                num(p.susceptibility),
-                num(p.susceptibility_error),
+                num(e.energy),
+                num(e.energy_error),
+                num(e.abs_magnetization),
+                num(e.abs_magnetization_error),
+                num(e.binder),
+                num(e.binder_error),
+                num(e.specific_heat),
+                num(e.specific_heat_error),
+                num(e.susceptibility),
+                num(e.susceptibility_error),
                 p.spins_flipped.to_string(),
                 num(p.seconds),
+                num(e.abs_magnetization),
+                num(e.abs_magnetization_error),
+                num(e.binder),
+                num(e.binder_error),
+                num(e.uniform_magnetization),
+                num(e.uniform_magnetization_error),
+                point_algorithm(p.algorithm, p.gauged),
+                q.clone(),
             ]);
         }
         grid
@@ -169,50 +308,86 @@ impl Report for McReport {
 
     fn table(&self) -> TextDoc {
         let pm = |v: f64, e: f64| format!("{} ± {}", fmt4(v), fmt_err(e));
+        let order_header = if self.parameter.is_uniform() {
+            "|m|".to_string()
+        } else {
+            format!("|M| ({})", self.parameter.pattern())
+        };
         let mut grid = Grid::new([
-            "L",
-            "sites",
-            "T",
-            "energy",
-            "|m|",
-            "Binder U4",
-            "C",
-            CHI_PRIME,
-            "update",
-            "s",
+            "L".to_string(),
+            "sites".into(),
+            "T".into(),
+            "energy".into(),
+            order_header,
+            "Binder U4".into(),
+            "C".into(),
+            CHI_PRIME.into(),
+            "update".into(),
+            "s".into(),
         ]);
         for p in &self.result.points {
+            let e = &p.estimates;
             grid.push([
                 p.size.to_string(),
                 p.sites.to_string(),
                 num(p.temperature),
-                pm(p.energy, p.energy_error),
-                pm(p.abs_magnetization, p.abs_magnetization_error),
-                pm(p.binder, p.binder_error),
-                pm(p.specific_heat, p.specific_heat_error),
-                pm(p.susceptibility, p.susceptibility_error),
-                p.algorithm.name().to_string(),
+                pm(e.energy, e.energy_error),
+                pm(e.abs_magnetization, e.abs_magnetization_error),
+                pm(e.binder, e.binder_error),
+                pm(e.specific_heat, e.specific_heat_error),
+                pm(e.susceptibility, e.susceptibility_error),
+                point_algorithm(p.algorithm, p.gauged),
                 format!("{:.2}", p.seconds),
             ]);
         }
+        let d = self.dimension;
         let mut blocks = vec![
+            Block::Fields(vec![
+                ("order parameter".into(), self.parameter.describe()),
+                (
+                    "wavevector".into(),
+                    format!("({})", fmt_vec(&self.parameter.wavevector, d)),
+                ),
+                ("update".into(), self.algorithm.clone()),
+            ]),
             Block::Table(grid),
             Block::Heading("Critical temperature".into()),
         ];
-        blocks.push(Block::Line(match &self.result.tc_estimate {
-            Some(t) => format!("Binder-cumulant crossing: Tc = {} ± {}", fmt4(t.tc), fmt_err(t.tc_error)),
-            None => "no Binder-cumulant crossing between the temperatures given: widen --temps around Tc or add sizes".into(),
-        }));
+        blocks.push(Block::Line(
+            match (&self.assessment.tc_estimate, &self.assessment.note) {
+                (Some(t), _) => format!(
+                    "Binder-cumulant crossing of the order parameter: Tc = {} ± {}",
+                    fmt4(t.tc),
+                    fmt_err(t.tc_error)
+                ),
+                (None, Some(why)) => format!("no Tc: {why}"),
+                (None, None) => "no Tc".into(),
+            },
+        ));
         let mut notes = vec![
             format!("per-site values on L×…×L tori; seed {} (same seed, same numbers)", self.result.seed),
-            "U4 = 1 − ⟨m⁴⟩/(3⟨m²⟩²) (Binder 1981); error bars: binning (means), jackknife (U4, C, χ′)".into(),
-            "C = N(⟨e²⟩ − ⟨e⟩²)/T², the same quantity as `sweep`'s C = ∂U/∂T; χ′ = N(⟨m²⟩ − ⟨|m|⟩²)/T, \
-             the finite-torus susceptibility from fluctuations of |m| (common practice in finite-size Monte Carlo), \
-             NOT `sweep`'s χ = ∂m/∂h: above Tc, where m is near-Gaussian (⟨|m|⟩² = (2/π)⟨m²⟩), \
+            "U4 = 1 − ⟨M⁴⟩/(3⟨M²⟩²) of the order parameter M (Binder 1981); error bars: binning (means), jackknife (U4, C, χ′)".into(),
+            "C = N(⟨e²⟩ − ⟨e⟩²)/T², the same quantity as `sweep`'s C = ∂U/∂T; χ′ = N(⟨M²⟩ − ⟨|M|⟩²)/T, \
+             the finite-torus susceptibility from fluctuations of |M| (common practice in finite-size Monte Carlo), \
+             NOT `sweep`'s χ = ∂m/∂h: above Tc, where M is near-Gaussian (⟨|M|⟩² = (2/π)⟨M²⟩), \
              χ′ ≈ (1 − 2/π) χ ≈ 0.36 χ"
                 .into(),
         ];
-        if self.dimension == 1 {
+        if self.parameter.components() > 1 {
+            notes.push(format!(
+                "the order parameter has {} components: U4 of a disordered phase is 1 − (n + 2)/(3n) for n components, not 0 (1/3 for n = 2)",
+                self.parameter.components()
+            ));
+        }
+        if self.result.points.iter().any(|p| p.gauged) {
+            notes.push(
+                "Wolff clusters ran on the gauge-transformed spins σ_i = ε_i s_i (one sublattice flipped), \
+                 in which every bond is ferromagnetic; energies and order parameters are those of the original spins"
+                    .into(),
+            );
+        }
+        notes.extend(self.notes.iter().cloned());
+        if d == 1 {
             notes.push("a one-dimensional lattice has no order at T > 0: U4 curves do not cross at a finite Tc".into());
         }
         TextDoc {
