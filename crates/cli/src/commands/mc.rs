@@ -35,8 +35,11 @@ use crate::error::CliError;
 use crate::output::{num, Block, Grid, Output, Report, TextDoc};
 use crate::progress::{seconds, Progress};
 
-/// Table header of the Monte Carlo susceptibility: not `sweep`'s χ = ∂m/∂h.
-pub const CHI_PRIME: &str = "χ′ = N(⟨M²⟩−⟨|M|⟩²)/T";
+/// Table header of the Monte Carlo susceptibility of uniform order: not `sweep`'s
+/// χ = ∂m/∂h.
+pub const CHI_PRIME: &str = "χ′ = N(⟨m²⟩−⟨|m|⟩²)/T";
+/// The same for any other order parameter M.
+pub const CHI_PRIME_ORDER: &str = "χ′ = N(⟨M²⟩−⟨|M|⟩²)/T";
 
 /// What the specific heat, the susceptibility and the order parameter of `mc` are (JSON
 /// `definitions`).
@@ -321,7 +324,11 @@ impl Report for McReport {
             order_header,
             "Binder U4".into(),
             "C".into(),
-            CHI_PRIME.into(),
+            if self.parameter.is_uniform() {
+                CHI_PRIME.into()
+            } else {
+                CHI_PRIME_ORDER.into()
+            },
             "update".into(),
             "s".into(),
         ]);
