@@ -221,7 +221,16 @@ fn search(
             pc[1] + cb[1] - rc[1],
             pc[2] + cb[2] - rc[2],
         ];
-        search(k + 1, order, parent, neighbours, bonds, map, found);
+        // Prune now: every bond from `a` to an already placed site must land on a bond
+        // with the same coupling. Without this the search only fails at the leaves, which
+        // is exponential in the basis (a 6×6 supercell took minutes).
+        let consistent = neighbours[a].iter().all(|&(n, cn, jn)| {
+            map.perm[n] == usize::MAX
+                || bonds.get(&map.image(&Cluster::canonical([(a, [0; 3]), (n, cn)]))) == Some(&jn)
+        });
+        if consistent {
+            search(k + 1, order, parent, neighbours, bonds, map, found);
+        }
         map.perm[a] = usize::MAX;
     }
 }

@@ -2,6 +2,9 @@
 //! m, U, F (top row) and S, C, χ = ∂m/∂h (bottom row); `--panels` picks some, in the
 //! order given — one curve per (level, field), the exact curve where a closed form gives
 //! the quantity at that field, and a dashed vertical line at each level's Tc (h = 0).
+//! A level whose order is not uniform (an antiferromagnet's Néel order, an alloy
+//! superstructure) has m ≈ 0 in its ordered phase, so the m panel also draws its order
+//! parameter, dotted, in the level's colour (the axis label says so).
 //!
 //! Colour says the level; with several fields, the line style and the marker say the
 //! field (solid ●, dashed ▲, dotted ■, …), so no two curves look alike. With one field the
@@ -38,6 +41,9 @@ pub struct LevelCurves<'a> {
     pub points: &'a [Observables],
     /// Tc at h = 0, if known: drawn as a dashed vertical line.
     pub tc: Option<f64>,
+    /// The order parameter at each of `points` (same order), or empty if not known. Drawn
+    /// in the m panel when it differs from |m| (non-uniform order).
+    pub order: Vec<f64>,
 }
 
 /// Everything the figure shows.
@@ -178,12 +184,24 @@ struct Curve {
     field: f64,
     tc: Option<f64>,
     data: [Vec<(f64, f64)>; 6],
+    /// An order-parameter curve (m panel only).
+    order: bool,
 }
 
 impl Curve {
     fn exact(&self) -> bool {
-        self.marker.is_none()
+        self.marker.is_none() && !self.order
     }
+}
+
+/// Whether a level's order parameter differs from |m| somewhere (non-uniform order).
+fn staggered(level: &LevelCurves) -> bool {
+    level.order.len() == level.points.len()
+        && level
+            .points
+            .iter()
+            .zip(&level.order)
+            .any(|(p, o)| (o - p.magnetization.abs()).abs() > 1e-6)
 }
 
 impl SweepFigure<'_> {
@@ -283,6 +301,26 @@ fn curves(figure: &SweepFigure) -> Vec<Curve> {
         for (fi, &h) in figure.fields.iter().enumerate() {
             let pts: Vec<&Observables> = level.points.iter().filter(|p| p.field == h).collect();
             let (colour, mark, dash) = style_of(li, fi, figure.fields.len());
+            let order_curve = staggered(level).then(|| {
+                let mut data: [Vec<(f64, f64)>; 6] = Default::default();
+                data[Quantity::M as usize] = level
+                    .points
+                    .iter()
+                    .zip(&level.order)
+                    .filter(|(p, _)| p.field == h)
+                    .map(|(p, &o)| (p.temperature, o))
+                    .collect();
+                Curve {
+                    label: String::new(),
+                    colour,
+                    marker: None,
+                    dash: Dash::Dotted,
+                    field: h,
+                    tc: None,
+                    data,
+                    order: true,
+                }
+            });
             let label = if several {
                 format!("{}, h = {h}", level.level)
             } else {
@@ -290,6 +328,7 @@ fn curves(figure: &SweepFigure) -> Vec<Curve> {
             };
             let data =
                 Quantity::ALL.map(|q| pts.iter().map(|p| (p.temperature, q.of(p))).collect());
+            let order_label = format!("{label}: order parameter");
             out.push(Curve {
                 label,
                 colour,
@@ -298,7 +337,12 @@ fn curves(figure: &SweepFigure) -> Vec<Curve> {
                 field: h,
                 tc: if h == 0.0 { level.tc } else { None },
                 data,
+                order: false,
             });
+            out.extend(order_curve.map(|c| Curve {
+                label: order_label,
+                ..c
+            }));
         }
     }
     if let Some(form) = &figure.exact {
@@ -339,6 +383,7 @@ fn curves(figure: &SweepFigure) -> Vec<Curve> {
                 field: h,
                 tc: None,
                 data,
+                order: false,
             });
         }
     }
@@ -396,7 +441,11 @@ fn draw_panel<DB: DrawingBackend>(
     x: Range<f64>,
 ) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
     let (lo, hi, note) = y_range(q, curves);
-    let desc = format!("{}{note}", q.label());
+    let desc = if q == Quantity::M && curves.iter().any(|c| c.order) {
+        format!("{}; dotted: order parameter{note}", q.label())
+    } else {
+        format!("{}{note}", q.label())
+    };
     if q == Quantity::Chi {
         let y = LogCoord::from((lo..hi).log_scale());
         panel(area, q, curves, x, y, &desc, true, (lo, hi))
@@ -517,6 +566,15 @@ fn legend_entries(figure: &SweepFigure, curves: &[Curve]) -> Vec<Entry> {
                 tc_line: false,
             });
         }
+    }
+    if several && curves.iter().any(|c| c.order) {
+        out.push(Entry {
+            label: "dotted, in the level's colour: order parameter (m panel)".into(),
+            colour: RGBColor(90, 90, 90),
+            marker: None,
+            dash: Dash::Dotted,
+            tc_line: false,
+        });
     }
     if several {
         // One entry for the exact curves: black, in the line style of their field.
@@ -651,6 +709,7 @@ mod tests {
                 level,
                 points: &pts,
                 tc: Some(2.3),
+                order: Vec::new(),
             })
             .to_vec();
         let figure = SweepFigure {
@@ -689,6 +748,7 @@ mod tests {
                 level: "pair",
                 points: &pts,
                 tc: None,
+                order: Vec::new(),
             }],
             fields: &fields,
             exact,
@@ -700,5 +760,49 @@ mod tests {
         // The chain is solved in any field (Ising 1925).
         let chain = figure(Some(ClosedForm::Chain { j: 1.0 }));
         assert_eq!(chain.exact_fields(), vec![0.0, 0.1]);
+    }
+
+    #[test]
+    fn staggered_levels_draw_their_order_parameter_in_the_m_panel() {
+        let fields = [0.0];
+        let pts: Vec<Observables> = (0..5)
+            .map(|k| Observables {
+                magnetization: 0.0,
+                ..point(1.0 + 0.5 * k as f64, 0.0)
+            })
+            .collect();
+        // Néel order: m = 0, order parameter 0.9 … 0.1 (invented demo numbers).
+        let order: Vec<f64> = (0..5).map(|k| 0.9 - 0.2 * k as f64).collect();
+        let figure = SweepFigure {
+            lattice: "demo",
+            levels: vec![
+                LevelCurves {
+                    level: "pair",
+                    points: &pts,
+                    tc: None,
+                    order: order.clone(),
+                },
+                // A uniform level (order = |m|) gets no extra curve.
+                LevelCurves {
+                    level: "site",
+                    points: &pts,
+                    tc: None,
+                    order: vec![0.0; 5],
+                },
+            ],
+            fields: &fields,
+            exact: None,
+            panels: &Quantity::ALL,
+        };
+        let curves = curves(&figure);
+        assert_eq!(curves.len(), 3);
+        let o = &curves[1];
+        assert!(o.order && !o.exact());
+        assert_eq!(o.colour, curves[0].colour);
+        assert_eq!(o.data[Quantity::M as usize].len(), 5);
+        assert!(o.data[Quantity::U as usize].is_empty());
+        assert!(legend_entries(&figure, &curves)
+            .iter()
+            .any(|e| e.label == "pair: order parameter"));
     }
 }

@@ -103,3 +103,16 @@ fn plaquette_orbits() {
     let orbits = variable_orbits(&lv, &level_group(&lv, &point_group(&l)));
     assert_eq!(lv.reduced(&orbits).variables.len(), 5);
 }
+
+#[test]
+fn supercells_keep_the_point_group_times_the_inner_translations() {
+    // A 6×6 supercell of the square lattice: D4 (order 8) times the 36 translations that
+    // permute the supercell's sites, 288 operations (common practice: the space group
+    // modulo the supercell's translations). Before the search pruned each placed site,
+    // this took minutes.
+    let l = square(1.0).supercell([6, 6, 1]).unwrap();
+    assert_eq!(point_group(&l).len(), 8 * 36);
+    // Jx ≠ Jy: order 4 times 36.
+    let l = square(0.5).supercell([6, 6, 1]).unwrap();
+    assert_eq!(point_group(&l).len(), 4 * 36);
+}

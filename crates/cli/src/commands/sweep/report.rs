@@ -201,6 +201,7 @@ impl SweepReport {
                     level: &l.level,
                     points: &l.points,
                     tc: l.tc,
+                    order: l.info.iter().map(|i| i.order_parameter).collect(),
                 })
                 .collect(),
             fields: &self.fields,
@@ -261,6 +262,13 @@ fn cell(x: f64) -> String {
     } else {
         fixed(x, 6)
     }
+}
+
+/// A magnetisation-like number (|x| ≤ 1) for a table: values below the rounding floor of
+/// an average of sublattice magnetisations (|x| < 1e-14, e.g. the cancelling sublattices
+/// of an antiferromagnet) print as 0 instead of as noise like `1.38778e-17`.
+fn cell_unit(x: f64) -> String {
+    cell(if x.abs() < 1e-14 { 0.0 } else { x })
 }
 
 impl Report for SweepReport {
@@ -333,8 +341,8 @@ impl Report for SweepReport {
                 grid.push([
                     num(p.temperature),
                     num(p.field),
-                    cell(p.magnetization),
-                    cell(i.order_parameter),
+                    cell_unit(p.magnetization),
+                    cell_unit(i.order_parameter),
                     cell(p.energy),
                     cell(p.free_energy),
                     cell(p.entropy),
@@ -373,6 +381,8 @@ mod tests {
     #[test]
     fn table_cells_never_show_minus_zero_and_switch_to_scientific() {
         assert_eq!(cell(-0.0), "0.000000");
+        assert_eq!(cell_unit(1.38778e-17), "0.000000");
+        assert_eq!(cell_unit(-3e-6), "-3.00000e-6");
         assert_eq!(cell(0.25), "0.250000");
         assert_eq!(cell(2.5e7), "2.50000e7");
         assert_eq!(cell(-3e-6), "-3.00000e-6");
