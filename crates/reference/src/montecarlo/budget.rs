@@ -181,14 +181,12 @@ pub(crate) fn check_config(lattice: &Lattice, config: &McConfig) -> Result<(), M
     if !field.is_finite() {
         return Err(McError::BadField(field));
     }
-    if config.algorithm == Algorithm::Wolff {
-        if field != 0.0 {
-            return Err(McError::WolffNotApplicable {
-                detail: format!("the field is h = {field}"),
-            });
-        }
-        // Antiferromagnetic bonds are checked on the torus: a sublattice gauge may make
-        // them ferromagnetic (super::gauge).
+    // Antiferromagnetic bonds are checked on the torus: a sublattice gauge may make
+    // them ferromagnetic (super::gauge).
+    if config.algorithm == Algorithm::Wolff && field != 0.0 {
+        return Err(McError::WolffNotApplicable {
+            detail: format!("the field is h = {field}"),
+        });
     }
     Ok(())
 }

@@ -91,7 +91,7 @@ impl Order {
 
 /// Refuse a size that is not a multiple of `period`, suggesting the nearest that are.
 fn check_period(size: usize, period: usize) -> Result<(), McError> {
-    if size % period == 0 {
+    if size.is_multiple_of(period) {
         return Ok(());
     }
     let below = size / period * period;
