@@ -292,8 +292,8 @@ pub fn expected(lattice: &Lattice) -> OrderParameter {
                     let mut out = OrderParameter::from_ordering(lattice, &ordering, source);
                     if source == OrderSource::SiteLevel && pair_found_none {
                         out.degenerate.get_or_insert_with(|| {
-                            "the pair level finds no ordering transition at h = 0 (frustration): the mean-field ordering \
-                             measured need not be the one, if any, that sets in"
+                            "the pair level finds no ordering transition at h = 0 (as in one dimension, or under \
+                             frustration): the mean-field ordering measured need not be one that sets in"
                                 .into()
                         });
                     }

@@ -45,7 +45,7 @@ pub const CHI_PRIME_ORDER: &str = "χ′ = N(⟨M²⟩−⟨|M|⟩²)/T";
 /// `definitions`).
 pub const DEFINITIONS: [(&str, &str); 4] = [
     ("specific_heat", "N(<e^2> - <e>^2)/T^2, from energy fluctuations; the same quantity as sweep's C = dU/dT"),
-    ("susceptibility", "N(<M^2> - <|M|>^2)/T, from fluctuations of the order parameter |M| (chi prime); for uniform order not sweep's dm/dh, which is larger above Tc"),
+    ("susceptibility", "N(<M^2> - <|M|>^2)/T, from fluctuations of the order parameter |M| (chi prime; for uniform order M = m, N(<m^2> - <|m|>^2)/T); not sweep's dm/dh, which is larger above Tc"),
     ("abs_magnetization", "<|M|>, the order parameter: M_c = (1/N) sum_i w_c,i s_i projected on the ordering pattern (`order`), |M| the length over its components; |m| for uniform order. Also given as order_parameter; uniform_magnetization is <|m|> of the plain magnetisation"),
     ("binder", "U4 = 1 - <M^4>/(3<M^2>^2) of the order parameter (Binder 1981); also given as binder_order"),
 ];
