@@ -15,7 +15,7 @@
 //! | a sweep along T (and h) | [`sweep`] | [`SweepReport`] |
 //! | the ladder with extrapolations | [`ladder`] | [`Ladder`] |
 //! | references | [`reference()`], [`closed_form`] | [`Reference`], [`ClosedForm`] |
-//! | Monte Carlo on finite tori | [`monte_carlo`] | [`McResult`] |
+//! | Monte Carlo on finite tori | [`monte_carlo`] | [`McReport`] |
 //!
 //! Every result is a plain value; [`TcReport`], [`SweepReport`] and [`Ladder`] serialize
 //! (`serde`) to exactly the JSON that `rungs tc|sweep|ladder --format json` prints, so a
@@ -406,17 +406,20 @@ pub fn closed_form(lattice: &Lattice) -> Option<ClosedForm> {
 }
 
 /// Monte Carlo on `L × … × L` tori of the lattice for every L in `sizes`, at the
-/// temperatures of `config` (Wolff cluster updates for ferromagnets at h = 0, Metropolis
-/// otherwise), with a Binder-crossing estimate of Tc — the numbers of `rungs mc`. The
-/// same seed gives the same numbers. Arguments and memory are checked before anything
-/// is built.
+/// temperatures of `config`, measuring the lattice's own order parameter (the uniform
+/// magnetisation for a ferromagnet, the staggered one for Néel order; sizes rounded up to
+/// the pattern's period), with a Binder-crossing estimate of Tc that is withheld where
+/// the ordering is degenerate (frustration) — the numbers of `rungs mc`. Wolff cluster
+/// updates where every bond is ferromagnetic, or becomes so by flipping a sublattice, at
+/// h = 0; Metropolis otherwise. The same seed gives the same numbers. Arguments and
+/// memory are checked before anything is built.
 ///
 /// ```
 /// let square = rungs::load("lattices/square.yaml")?;
 /// let config = rungs::McConfig { temperatures: vec![1.5], sweeps: 200, warmup: 50, ..Default::default() };
 /// let run = rungs::monte_carlo(&square, &[4], &config)?;
 /// // Far below Onsager's Tc = 2.269 the spins are nearly all aligned: |m| → 1.
-/// assert!(run.points[0].abs_magnetization > 0.9);
+/// assert!(run.result.points[0].estimates.abs_magnetization > 0.9);
 /// assert!(rungs::monte_carlo(&square, &[], &config).unwrap_err().is_bad_input());
 /// # Ok::<(), rungs::Error>(())
 /// ```
@@ -424,8 +427,12 @@ pub fn monte_carlo(
     lattice: &Lattice,
     sizes: &[usize],
     config: &McConfig,
-) -> Result<McResult, Error> {
-    Ok(rungs_reference::montecarlo::run(
-        lattice, sizes, config, None,
-    )?)
+) -> Result<McReport, Error> {
+    let prepared = rungs_reference::montecarlo::prepare(
+        lattice,
+        sizes,
+        config,
+        &rungs_reference::montecarlo::OrderChoice::Auto,
+    )?;
+    Ok(prepared.run(lattice, config, None)?)
 }

@@ -523,3 +523,25 @@ fn square_ladder_with_the_4x4_block_converges() {
         "γ with 4×4: {gamma4}, without: {gamma3}"
     );
 }
+
+#[test]
+fn mc_draws_no_reference_for_the_triangular_antiferromagnet() {
+    // No order at T > 0 (Wannier 1950, Phys. Rev. 79, 357): the Monte Carlo run on the
+    // frustrated order parameter must not become a reference.
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string("lattices/triangular.yaml").unwrap();
+    let body: String = text
+        .split("\nreference:")
+        .next()
+        .unwrap()
+        .replace("J: 1.0", "J: -1.0");
+    let path = dir.path().join("triangular_af.yaml");
+    std::fs::write(&path, body + "\n").unwrap();
+    let doc = ladder(path.to_str().unwrap(), &["--mc"]);
+    assert!(doc["reference"].is_null(), "{doc}");
+    assert!(
+        has_note(&doc, "no Monte Carlo reference"),
+        "{:?}",
+        notes(&doc)
+    );
+}

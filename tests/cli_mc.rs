@@ -171,3 +171,114 @@ fn a_torus_too_large_for_memory_is_refused_before_it_is_built() {
         &["sweeps", "at least 64"],
     );
 }
+
+/// A shipped lattice with `J: 1.0` → `J: j` and its (ferromagnetic) reference dropped.
+fn with_j(dir: &tempfile::TempDir, stem: &str, j: f64) -> String {
+    let text = std::fs::read_to_string(format!("lattices/{stem}.yaml")).unwrap();
+    let mut out = String::new();
+    let mut skip = false;
+    for line in text.lines() {
+        if line.starts_with("reference:") {
+            skip = true;
+            continue;
+        }
+        if skip && line.starts_with("  ") {
+            continue;
+        }
+        skip = false;
+        out.push_str(&line.replace("J: 1.0", &format!("J: {j}")));
+        out.push('\n');
+    }
+    let path = dir.path().join(format!("{stem}_{j}.yaml"));
+    std::fs::write(&path, out).unwrap();
+    path.to_str().unwrap().to_string()
+}
+
+#[test]
+fn antiferromagnet_json_names_the_order_parameter_and_the_update() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = with_j(&dir, "square", -1.0);
+    let v = mc(&[
+        "mc", &path, "--sizes", "3,6", "--temps", "2.0,3.0", "--sweeps", "200", "--warmup", "20",
+        "--format", "json",
+    ]);
+    // Néel order at q = (1/2, 1/2); sizes rounded up to the period 2, and said so.
+    assert_eq!(v["wavevector"], serde_json::json!([0.5, 0.5]));
+    assert_eq!(v["order"]["wavevector"], serde_json::json!([0.5, 0.5]));
+    assert_eq!(v["order"]["pattern"], "staggered");
+    assert_eq!(v["order"]["period"], 2);
+    assert_eq!(v["sizes"], serde_json::json!([4, 6]));
+    let notes: Vec<&str> = v["notes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(Value::as_str)
+        .collect();
+    assert!(notes.iter().any(|n| n.contains("3 → 4")), "{notes:?}");
+    assert_eq!(v["algorithm"], "wolff (sublattice gauge)");
+    for p in v["points"].as_array().unwrap() {
+        for key in [
+            "order_parameter",
+            "order_parameter_error",
+            "binder_order",
+            "binder_order_error",
+            "susceptibility_order",
+            "uniform_magnetization",
+            "uniform_magnetization_error",
+            "abs_magnetization",
+            "binder",
+        ] {
+            assert!(p[key].is_number(), "missing `{key}` in {p}");
+        }
+        assert_eq!(p["order_parameter"], p["abs_magnetization"]);
+        assert_eq!(p["algorithm"], "wolff");
+        assert_eq!(p["gauged"], true);
+    }
+    // Cold: the staggered magnetisation is large, the uniform one small (Néel order).
+    let cold = &v["points"][0];
+    assert!(cold["order_parameter"].as_f64().unwrap() > 0.8, "{cold}");
+    assert!(
+        cold["uniform_magnetization"].as_f64().unwrap() < 0.2,
+        "{cold}"
+    );
+    // CSV: the new columns come after the old ones.
+    let csv = ok(&[
+        "mc", &path, "--sizes", "4", "--temps", "2.0", "--sweeps", "100", "--warmup", "10",
+        "--format", "csv",
+    ]);
+    let header = csv.lines().next().unwrap();
+    assert!(
+        header.starts_with("size,sites,temperature,energy,"),
+        "{header}"
+    );
+    assert!(
+        header.ends_with("order_parameter,order_parameter_error,binder_order,binder_order_error,uniform_magnetization,uniform_magnetization_error,algorithm,wavevector"),
+        "{header}"
+    );
+}
+
+#[test]
+fn triangular_antiferromagnet_has_no_tc_and_says_why() {
+    // No order at T > 0 (Wannier 1950, Phys. Rev. 79, 357).
+    let dir = tempfile::tempdir().unwrap();
+    let path = with_j(&dir, "triangular", -1.0);
+    let v = mc(&[
+        "mc",
+        &path,
+        "--sizes",
+        "6,12",
+        "--temps",
+        "0.5:3:0.5",
+        "--sweeps",
+        "1000",
+        "--warmup",
+        "100",
+        "--format",
+        "json",
+    ]);
+    assert!(v["tc_estimate"].is_null(), "{}", v["tc_estimate"]);
+    assert!(v["note"].as_str().unwrap().contains("no"), "{}", v["note"]);
+    assert_eq!(v["algorithm"], "metropolis");
+    assert_eq!(v["order"]["components"], 2);
+    assert!(v["order"]["degenerate"].is_string());
+}

@@ -7,7 +7,7 @@ use std::f64::consts::PI;
 
 use rungs_lattice::{Lattice, Torus};
 use rungs_reference::montecarlo::{
-    run, run_systems, Algorithm, McConfig, McError, McPoint, Neighbours, System,
+    run, run_systems, Algorithm, McConfig, McError, McPoint, Neighbours, Order, System,
 };
 
 /// The lattice file shipped in `lattices/`.
@@ -65,11 +65,7 @@ fn honeycomb_edges(l: usize) -> Vec<(usize, usize, f64)> {
 }
 
 fn system(size: usize, sites: usize, edges: &[(usize, usize, f64)], field: f64) -> System {
-    System {
-        size,
-        neighbours: Neighbours::from_edges(sites, edges).unwrap(),
-        field,
-    }
+    System::new(size, Neighbours::from_edges(sites, edges).unwrap(), field)
 }
 
 /// Exact ⟨e⟩, ⟨|m|⟩, ⟨m²⟩, ⟨m⁴⟩ per site by summing all 2^n states.
@@ -112,11 +108,21 @@ fn within(name: &str, mc: f64, sigma: f64, exact: f64) {
 }
 
 fn check_against_enumeration(p: &McPoint, ex: [f64; 4]) {
-    within("energy", p.energy, p.energy_error, ex[0]);
-    within("|m|", p.abs_magnetization, p.abs_magnetization_error, ex[1]);
-    within("m²", p.m2, p.m2_error, ex[2]);
+    within(
+        "energy",
+        p.estimates.energy,
+        p.estimates.energy_error,
+        ex[0],
+    );
+    within(
+        "|m|",
+        p.estimates.abs_magnetization,
+        p.estimates.abs_magnetization_error,
+        ex[1],
+    );
+    within("m²", p.estimates.m2, p.estimates.m2_error, ex[2]);
     let u4 = 1.0 - ex[3] / (3.0 * ex[2] * ex[2]);
-    within("binder", p.binder, p.binder_error, u4);
+    within("binder", p.estimates.binder, p.estimates.binder_error, u4);
 }
 
 fn config(temps: &[f64], sweeps: usize, seed: u64) -> McConfig {
@@ -204,8 +210,17 @@ fn square_64_energy_at_t3_matches_onsager() {
     assert_eq!(p.algorithm, Algorithm::Wolff);
     // At T = 3 the correlation length is ~1 site: finite-size effects on a 64² torus are
     // exponentially small (common practice), so the infinite-lattice value applies.
-    within("energy", p.energy, p.energy_error, onsager_energy(t));
-    assert!(p.energy_error < 2e-3, "{}", p.energy_error);
+    within(
+        "energy",
+        p.estimates.energy,
+        p.estimates.energy_error,
+        onsager_energy(t),
+    );
+    assert!(
+        p.estimates.energy_error < 2e-3,
+        "{}",
+        p.estimates.energy_error
+    );
 }
 
 /// Honeycomb Tc = 2 / ln(2 + √3) for J = 1 (Houtappel 1950, Physica 16, 425).
@@ -218,6 +233,7 @@ fn honeycomb_tc_estimate(sizes: &[usize], temps: &[f64], sweeps: usize, seed: u6
         &lattice_file("honeycomb.yaml"),
         sizes,
         &config(temps, sweeps, seed),
+        &Order::Uniform,
         None,
     )
     .unwrap();
@@ -269,6 +285,7 @@ fn hand_written_honeycomb_torus_gives_the_same_physics_as_the_file() {
         &lattice_file("honeycomb.yaml"),
         &[6],
         &config(&temps, 4_000, 8),
+        &Order::Uniform,
         None,
     )
     .unwrap();
@@ -281,9 +298,9 @@ fn hand_written_honeycomb_torus_gives_the_same_physics_as_the_file() {
     for (f, h) in file.points.iter().zip(&hand.points) {
         within(
             "energy",
-            f.energy,
-            f.energy_error.hypot(h.energy_error),
-            h.energy,
+            f.estimates.energy,
+            f.estimates.energy_error.hypot(h.estimates.energy_error),
+            h.estimates.energy,
         );
     }
 }
@@ -293,7 +310,14 @@ fn lattice_file_torus_matches_exact_enumeration_and_fields_switch_to_metropolis(
     let square = Lattice::from_yaml_str(SQUARE, "square.yaml").unwrap();
     let t = 2.5;
     let edges = Torus::new(&square, &[4, 4]).unwrap().edges();
-    let r = run(&square, &[4], &config(&[t], 40_000, 31), None).unwrap();
+    let r = run(
+        &square,
+        &[4],
+        &config(&[t], 40_000, 31),
+        &Order::Uniform,
+        None,
+    )
+    .unwrap();
     assert_eq!(
         (r.points[0].sites, r.points[0].algorithm),
         (16, Algorithm::Wolff)
@@ -301,11 +325,18 @@ fn lattice_file_torus_matches_exact_enumeration_and_fields_switch_to_metropolis(
     check_against_enumeration(&r.points[0], exact(16, &edges, 0.0, t));
     // The file's field is used; Wolff does not apply, Metropolis is chosen.
     let h = 0.2;
-    let r = run(&square.with_field(h), &[4], &config(&[t], 40_000, 31), None).unwrap();
+    let r = run(
+        &square.with_field(h),
+        &[4],
+        &config(&[t], 40_000, 31),
+        &Order::Uniform,
+        None,
+    )
+    .unwrap();
     assert_eq!(r.points[0].algorithm, Algorithm::Metropolis);
     check_against_enumeration(&r.points[0], exact(16, &edges, h, t));
     // A torus too small to hold the lattice is refused with the size named.
-    let err = run(&square, &[1], &config(&[t], 100, 1), None).unwrap_err();
+    let err = run(&square, &[1], &config(&[t], 100, 1), &Order::Uniform, None).unwrap_err();
     assert!(matches!(err, McError::Torus { size: 1, .. }), "{err}");
 }
 

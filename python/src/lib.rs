@@ -174,11 +174,7 @@ fn mc_json(
     };
     py.detach(|| {
         json(
-            rungs::monte_carlo(&lattice.inner, &sizes, &config).map(|result| rungs::McReport {
-                lattice: lattice.inner.name().to_string(),
-                dimension: lattice.inner.dimension(),
-                result,
-            }),
+            rungs::monte_carlo(&lattice.inner, &sizes, &config),
         )
     })
 }

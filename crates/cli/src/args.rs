@@ -180,6 +180,41 @@ pub struct McArgs {
     /// Seed of the random-number generator (same seed, same numbers).
     #[arg(long, default_value_t = 1, value_name = "S")]
     pub seed: u64,
+    /// The order parameter measured: `auto` (the lattice's ordering wavevector, from the
+    /// pair level's instability or else the site level's), `uniform` (m), or a
+    /// wavevector in units of the reciprocal primitive vectors, e.g. `0.5,0.5`.
+    #[arg(long, default_value = "auto", value_parser = parse_order, value_name = "auto|uniform|Q")]
+    pub order: OrderChoice,
+}
+
+pub use rungs_reference::montecarlo::OrderChoice;
+
+/// Parse `auto`, `uniform` or a comma list of one to three finite numbers.
+pub fn parse_order(text: &str) -> Result<OrderChoice, String> {
+    match text.trim() {
+        "auto" => return Ok(OrderChoice::Auto),
+        "uniform" => return Ok(OrderChoice::Uniform),
+        _ => {}
+    }
+    let parts: Vec<&str> = text.split(',').map(str::trim).collect();
+    if parts.len() > 3 {
+        return Err(format!(
+            "`{text}` has more than three components: write auto, uniform or e.g. 0.5,0.5"
+        ));
+    }
+    let mut q = [0.0; 3];
+    for (k, part) in parts.iter().enumerate() {
+        q[k] = part
+            .parse::<f64>()
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(|| {
+                format!(
+                    "`{part}` is not a number: write auto, uniform or a wavevector such as 0.5,0.5"
+                )
+            })?;
+    }
+    Ok(OrderChoice::Wavevector(q))
 }
 
 /// Cell multiples of a supercell, unused dimensions 1 (`2x2` → `[2, 2, 1]`).

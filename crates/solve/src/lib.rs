@@ -25,6 +25,7 @@ pub mod functional;
 pub mod krylov;
 pub mod levels;
 pub mod linalg;
+pub mod order_parameter;
 pub mod ordering;
 pub mod phase;
 pub mod qspace;

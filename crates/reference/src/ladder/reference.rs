@@ -12,12 +12,14 @@
 //! reference Tc, and no Monte Carlo run is made for it.
 
 use rungs_lattice::Lattice;
+use rungs_solve::order_parameter::{expected, OrderParameter};
 use serde::{Serialize, Serializer};
 
 use super::climb::{Extrapolated, RungResult};
 use super::{LadderEvent, LadderOptions};
 use crate::closed::ClosedForm;
-use crate::montecarlo::{self, McConfig, TcEstimate};
+use crate::montecarlo::report::fit_sizes;
+use crate::montecarlo::{self, assess_tc, McConfig, Order, TcEstimate};
 
 /// A number for notes: the shortest text that reads back to the same `f64`.
 fn num(x: f64) -> String {
@@ -212,6 +214,20 @@ fn monte_carlo(
         .fold(0.70 * best, f64::min)
         .max(0.3 * best);
     let lattice = lattice.with_field(0.0);
+    // The lattice's own order parameter (staggered for Néel order), on sizes its
+    // pattern tiles.
+    let parameter = expected(&lattice);
+    let order = Order::from_weights(&lattice, parameter.period, parameter.components.clone())
+        .map_err(|e| e.to_string())?;
+    let sizes = fit_sizes(&order, &sizes, &mut Vec::new());
+    if sizes.len() < 3 {
+        return Err(format!(
+            "the ordering pattern repeats every {} cells, too many for the quick reference sizes",
+            order.period()
+        ));
+    }
+    let decide =
+        |estimate: Option<&TcEstimate>| assess_tc(estimate, parameter.degenerate.as_deref());
     let coarse = McConfig {
         temperatures: grid(low, 1.02 * best, 15),
         sweeps: 1_000,
@@ -225,21 +241,24 @@ fn monte_carlo(
             total,
         })
     };
-    let first =
-        montecarlo::run(&lattice, &sizes[..2], &coarse, Some(&scan)).map_err(|e| e.to_string())?;
-    let centre = first
-        .tc_estimate
-        .as_ref()
-        .ok_or_else(|| {
-            format!(
-                "the Binder cumulants of L = {} and {} do not cross between T = {} and {}",
+    let first = montecarlo::run(&lattice, &sizes[..2], &coarse, &order, Some(&scan))
+        .map_err(|e| e.to_string())?;
+    let first_tc = decide(first.tc_estimate.as_ref());
+    let centre = match (&first_tc.tc_estimate, &first_tc.note) {
+        (Some(e), _) => e.tc,
+        (None, Some(why)) if first.tc_estimate.is_some() => return Err(why.clone()),
+        _ => {
+            return Err(format!(
+                "the Binder cumulants of the {} order parameter of L = {} and {} do not cross between T = {} and {}: \
+                 Monte Carlo found no ordering transition there, so no reference is drawn",
+                parameter.pattern(),
                 sizes[0],
                 sizes[1],
                 num(round4(low)),
                 num(round4(1.02 * best))
-            )
-        })?
-        .tc;
+            ))
+        }
+    };
     let fine = McConfig {
         temperatures: grid(0.96 * centre, 1.04 * centre, 9),
         sweeps: 4_000,
@@ -253,12 +272,12 @@ fn monte_carlo(
             total,
         })
     };
-    let second =
-        montecarlo::run(&lattice, &sizes, &fine, Some(&refine)).map_err(|e| e.to_string())?;
-    let (estimate, config, used) = match second.tc_estimate {
+    let second = montecarlo::run(&lattice, &sizes, &fine, &order, Some(&refine))
+        .map_err(|e| e.to_string())?;
+    let (estimate, config, used) = match decide(second.tc_estimate.as_ref()).tc_estimate {
         Some(e) => (e, &fine, &sizes[..]),
         None => (
-            first.tc_estimate.ok_or("no Binder crossing")?,
+            first_tc.tc_estimate.ok_or("no Binder crossing")?,
             &coarse,
             &sizes[..2],
         ),
@@ -266,19 +285,25 @@ fn monte_carlo(
     Ok(ReferenceTc {
         tc: estimate.tc,
         tc_error: Some(estimate.tc_error),
-        source: describe(&estimate, config, used),
+        source: describe(&estimate, config, used, &parameter),
         kind: ReferenceKind::MonteCarlo,
     })
 }
 
 /// How a Monte Carlo estimate was made, for the report.
-fn describe(estimate: &TcEstimate, config: &McConfig, sizes: &[usize]) -> String {
+fn describe(
+    estimate: &TcEstimate,
+    config: &McConfig,
+    sizes: &[usize],
+    parameter: &OrderParameter,
+) -> String {
     let pair = estimate.crossings.last().map_or(String::new(), |c| {
         format!(" of L = {} and {} tori", c.size_small, c.size_large)
     });
     let all: Vec<String> = sizes.iter().map(|s| s.to_string()).collect();
     format!(
-        "Monte Carlo, this run: Binder-cumulant crossing{pair} (sizes {}; {} sweeps per point after {} warm-up; seed {}; Binder 1981, Z. Phys. B 43, 119)",
+        "Monte Carlo, this run: Binder-cumulant crossing{pair} of the {} order parameter (sizes {}; {} sweeps per point after {} warm-up; seed {}; Binder 1981, Z. Phys. B 43, 119)",
+        parameter.pattern(),
         all.join(", "),
         config.sweeps,
         config.warmup,

@@ -10,7 +10,17 @@
 //! sizes' squared U4 errors at T_a. Several sign changes in one pair (noise) are
 //! averaged and half their range is added to the error.
 //!
-//! The estimate is the crossing of the largest pair of sizes that brackets one; its error
+//! Only a crossing of an ordering transition counts: below Tc the larger torus is the
+//! more ordered (d > 0), above it the less (d < 0). A sign change from d > 0 (colder) to
+//! d ≤ 0 (warmer) is kept only when the curves really separate on both sides — some
+//! temperature at or below it with d > [`SIGNIFICANCE`]·σ_d and some at or above it with
+//! d < −[`SIGNIFICANCE`]·σ_d. Curves that merely touch within their noise (a
+//! frustrated lattice whose curves meet at T → 0, or temperatures all on one side of
+//! Tc) give no crossing rather than a false one.
+//!
+//! The estimate is the crossing of the largest pair of sizes, and there is none when that
+//! pair brackets no crossing (a crossing of smaller tori that the largest do not
+//! confirm is not taken for a transition); its error
 //! adds in quadrature the statistical error and the finite-size drift still left, bounded
 //! by the shift from the next smaller pair's crossing (crossings approach Tc with shifts
 //! that shrink with L) — or by that shift's own noise when the noise is larger, since a
@@ -44,8 +54,12 @@ pub struct TcEstimate {
     pub crossings: Vec<Crossing>,
 }
 
-/// Tc from the Binder crossings of `points` (any order); `None` when no pair of
-/// successive sizes has a crossing inside the temperatures simulated.
+/// How many standard errors the U4 curves of two sizes must differ by, on each side of
+/// a crossing, for it to count (common practice: a 2σ separation).
+pub const SIGNIFICANCE: f64 = 2.0;
+
+/// Tc from the Binder crossings of `points` (any order); `None` when the largest pair of
+/// successive sizes has no crossing inside the temperatures simulated.
 pub fn binder_crossing(points: &[McPoint]) -> Option<TcEstimate> {
     let mut sizes: Vec<usize> = points.iter().map(|p| p.size).collect();
     sizes.sort_unstable();
@@ -57,7 +71,7 @@ pub fn binder_crossing(points: &[McPoint]) -> Option<TcEstimate> {
                 let mut c: Vec<(f64, f64, f64)> = points
                     .iter()
                     .filter(|p| p.size == size)
-                    .map(|p| (p.temperature, p.binder, p.binder_error))
+                    .map(|p| (p.temperature, p.estimates.binder, p.estimates.binder_error))
                     .collect();
                 c.sort_by(|a, b| a.0.total_cmp(&b.0));
                 c
@@ -71,7 +85,13 @@ pub fn binder_crossing(points: &[McPoint]) -> Option<TcEstimate> {
             })
         })
         .collect();
+    // The crossing must persist up to the largest sizes: a crossing of small tori only
+    // (a finite-size artefact, or a frozen low-temperature run) is no estimate.
+    let largest = sizes.len().checked_sub(1).map(|k| sizes[k])?;
     let (last, rest) = crossings.split_last()?;
+    if last.size_large != largest {
+        return None;
+    }
     let drift = rest.last().map_or(0.0, |prev| {
         (last.tc - prev.tc)
             .abs()
@@ -85,8 +105,57 @@ pub fn binder_crossing(points: &[McPoint]) -> Option<TcEstimate> {
     })
 }
 
+/// What a run says about Tc: the estimate, if one may be reported, and a note when
+/// there is none or it is withheld.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TcAssessment {
+    /// The Binder-crossing estimate, `None` when there is no crossing or it is withheld.
+    pub tc_estimate: Option<TcEstimate>,
+    /// Why there is no estimate (no crossing, or a crossing withheld), if so.
+    pub note: Option<String>,
+}
+
+/// Decide what to report as Tc from a run's crossing `estimate`. `caution` names a
+/// reason the measured order parameter is not known to be the one that orders (e.g. the
+/// coupling's Fourier transform is maximal along a line, so the measured wavevector is
+/// one of a degenerate family): a crossing found is then withheld and named in the note
+/// only. No crossing gives a note saying no ordering transition was found.
+///
+/// ```
+/// use rungs_reference::montecarlo::assess_tc;
+/// let none = assess_tc(None, None);
+/// assert!(none.tc_estimate.is_none());
+/// assert!(none.note.unwrap().contains("no ordering transition"));
+/// ```
+pub fn assess_tc(estimate: Option<&TcEstimate>, caution: Option<&str>) -> TcAssessment {
+    match (estimate, caution) {
+        (None, _) => TcAssessment {
+            tc_estimate: None,
+            note: Some(
+                "no Binder-cumulant crossing of the order parameter between the temperatures given (the larger torus \
+                 is not significantly more ordered below and less ordered above any temperature): no ordering \
+                 transition found there; if one is expected, widen the temperatures around it or add sizes"
+                    .into(),
+            ),
+        },
+        (Some(e), Some(why)) => TcAssessment {
+            tc_estimate: None,
+            note: Some(format!(
+                "{why}; the Binder cumulants of the measured order parameter cross at T = {:.4} ± {:.1e}, which is \
+                 not reported as Tc",
+                e.tc, e.tc_error
+            )),
+        },
+        (Some(e), None) => TcAssessment {
+            tc_estimate: Some(e.clone()),
+            note: None,
+        },
+    }
+}
+
 /// Crossing of two curves given as (T, U4, σ) sorted by T; only temperatures present in
-/// both count. Returns (T*, σ_T*).
+/// both count, and only an ordering crossing separated by [`SIGNIFICANCE`] σ on both
+/// sides (module docs). Returns (T*, σ_T*).
 pub fn pair_crossing(small: &[(f64, f64, f64)], large: &[(f64, f64, f64)]) -> Option<(f64, f64)> {
     let diff: Vec<(f64, f64, f64)> = large
         .iter()
@@ -97,14 +166,15 @@ pub fn pair_crossing(small: &[(f64, f64, f64)], large: &[(f64, f64, f64)]) -> Op
         .collect();
     let found: Vec<(f64, f64)> = diff
         .windows(2)
-        .filter(|w| (w[0].1 > 0.0) != (w[1].1 > 0.0) || w[0].1 == 0.0)
-        .map(|w| {
+        .enumerate()
+        .filter(|(k, w)| {
+            let below = diff[..=*k].iter().any(|d| d.1 > SIGNIFICANCE * d.2);
+            let above = diff[k + 1..].iter().any(|d| d.1 < -SIGNIFICANCE * d.2);
+            w[0].1 > 0.0 && w[1].1 <= 0.0 && below && above
+        })
+        .map(|(_, w)| {
             let ((ta, da, sa), (tb, db, sb)) = (w[0], w[1]);
             let dt = tb - ta;
-            if da == db {
-                // Both zero: the curves coincide over the interval.
-                return (0.5 * (ta + tb), 0.5 * dt);
-            }
             let denom = da - db;
             let t = ta + dt * da / denom;
             let var = dt * dt * (db * db * sa * sa + da * da * sb * sb) / denom.powi(4);
@@ -143,6 +213,16 @@ mod tests {
         assert!((err - expected).abs() < 1e-12, "{err} vs {expected}");
         // No bracket: only temperatures below the crossing.
         assert!(pair_crossing(&small[..2], &large[..2]).is_none());
+        // Curves the wrong way round (the larger torus less ordered when colder) are no
+        // ordering transition; curves that only touch within their noise neither.
+        assert!(pair_crossing(&large, &small).is_none());
+        let noisy: Vec<_> = temps
+            .iter()
+            .zip([0.005, -0.005, 0.005, -0.005])
+            .map(|(&t, d)| (t, 0.5 + d, 0.01))
+            .collect();
+        let flat: Vec<_> = temps.iter().map(|&t| (t, 0.5, 0.01)).collect();
+        assert!(pair_crossing(&flat, &noisy).is_none());
     }
 
     #[test]
@@ -158,8 +238,11 @@ mod tests {
                 points.push(McPoint {
                     size,
                     temperature: t,
-                    binder: u,
-                    binder_error,
+                    estimates: crate::montecarlo::Estimates {
+                        binder: u,
+                        binder_error,
+                        ..Default::default()
+                    },
                     ..McPoint::default()
                 });
             }

@@ -15,7 +15,9 @@
 //!   [`BUILD_BYTES_PER_SITE`] = 52 and [`BUILD_BYTES_PER_BOND`] = 88 at the peak;
 //! * kept for the run ([`super::Neighbours`]): offsets 4 B per site, and per bond two
 //!   slots of target (4 B), coupling (8 B) and coupling kind (4 B) —
-//!   [`KEPT_BYTES_PER_SITE`] = 4, [`KEPT_BYTES_PER_BOND`] = 32;
+//!   [`KEPT_BYTES_PER_SITE`] = 4, [`KEPT_BYTES_PER_BOND`] = 32; and the order
+//!   parameter's weights ([`super::OrderPattern`]), 8 B per site and component, plus one
+//!   component more for the gauge of an antiferromagnet ([`ORDER_BYTES_PER_SITE`]);
 //! * per point being simulated (one per worker thread): spins 1 B and the Wolff stack
 //!   4 B per site ([`POINT_BYTES_PER_SITE`] = 5), plus the fixed measurement store
 //!   ([`POINT_BYTES`]).
@@ -30,6 +32,7 @@ use rungs_lattice::Lattice;
 
 use super::error::McError;
 use super::observables::{BinnedSeries, K, MIN_BINS};
+use super::order::Order;
 use super::run::{Algorithm, McConfig};
 
 /// Largest peak memory a run may need, in bytes (8 GiB).
@@ -44,6 +47,8 @@ pub const BUILD_BYTES_PER_BOND: u64 = 88;
 pub const KEPT_BYTES_PER_SITE: u64 = 4;
 /// Bytes per bond of a kept neighbour table.
 pub const KEPT_BYTES_PER_BOND: u64 = 32;
+/// Bytes per site and order-parameter component (one f64 weight).
+pub const ORDER_BYTES_PER_SITE: u64 = 8;
 /// Bytes per site of one point being simulated (spins and the Wolff stack).
 pub const POINT_BYTES_PER_SITE: u64 = 5;
 /// Fixed bytes of one point being simulated: the binned measurement store.
@@ -69,13 +74,14 @@ pub struct RunPlan {
 }
 
 /// Check the arguments of a run of `lattice` on `L × … × L` tori for every `L` in
-/// `sizes` with `config`, and estimate its peak memory and work (module docs) on
-/// `threads` worker threads — without building anything. Refuses what
-/// [`super::run()`] would refuse, and a run whose peak memory would exceed [`MAX_BYTES`]
+/// `sizes` with `config`, measuring `order`, and estimate its peak memory and work
+/// (module docs) on `threads` worker threads — without building anything. Refuses what
+/// [`super::run()`] would refuse (a size that is not a multiple of the order's period
+/// among it), and a run whose peak memory would exceed [`MAX_BYTES`]
 /// ([`McError::TooMuchMemory`]) or whose torus would exceed [`MAX_SITES`].
 ///
 /// ```
-/// use rungs_reference::montecarlo::{plan, McConfig, McError};
+/// use rungs_reference::montecarlo::{plan, McConfig, McError, Order};
 /// let square = rungs_lattice::Lattice::from_yaml_str(
 ///     "name: sq\ndimension: 2\nvectors: [[1.0, 0.0], [0.0, 1.0]]\nbasis: [{name: a}]\n\
 ///      couplings: {J: 1.0}\nbonds: [{from: a, to: a, cell: [1, 0], coupling: J},\n\
@@ -84,17 +90,18 @@ pub struct RunPlan {
 /// )
 /// .unwrap();
 /// let config = McConfig { temperatures: vec![2.3], ..McConfig::default() };
-/// let small = plan(&square, &[16, 32], &config, 2).unwrap();
+/// let small = plan(&square, &[16, 32], &config, &Order::Uniform, 2).unwrap();
 /// assert_eq!(small.sites, vec![256, 1024]);
 /// assert!(small.bytes < 10 << 20);
 /// // 10^10 sites cannot fit: refused before anything is allocated.
-/// let huge = plan(&square, &[100_000], &config, 2).unwrap_err();
+/// let huge = plan(&square, &[100_000], &config, &Order::Uniform, 2).unwrap_err();
 /// assert!(matches!(huge, McError::TooMuchMemory { .. }));
 /// ```
 pub fn plan(
     lattice: &Lattice,
     sizes: &[usize],
     config: &McConfig,
+    order: &Order,
     threads: usize,
 ) -> Result<RunPlan, McError> {
     check_config(lattice, config)?;
@@ -126,12 +133,14 @@ pub fn plan(
                 max: MAX_SITES as usize,
             });
         }
+        order.check_size(size)?;
         let cells = (size as f64).powi(dimension);
         let s = cells * cell_sites;
         let b = cells * cell_bonds;
         let build = BUILD_BYTES_PER_SITE as f64 * s + BUILD_BYTES_PER_BOND as f64 * b;
         peak = peak.max(kept + build);
-        kept += KEPT_BYTES_PER_SITE as f64 * s + KEPT_BYTES_PER_BOND as f64 * b;
+        let weights = ORDER_BYTES_PER_SITE as f64 * (order.components() + 1) as f64;
+        kept += (KEPT_BYTES_PER_SITE as f64 + weights) * s + KEPT_BYTES_PER_BOND as f64 * b;
         if peak > MAX_BYTES as f64 {
             return Err(too_much(size, s, peak));
         }
@@ -172,17 +181,12 @@ pub(crate) fn check_config(lattice: &Lattice, config: &McConfig) -> Result<(), M
     if !field.is_finite() {
         return Err(McError::BadField(field));
     }
-    if config.algorithm == Algorithm::Wolff {
-        if field != 0.0 {
-            return Err(McError::WolffNotApplicable {
-                detail: format!("the field is h = {field}"),
-            });
-        }
-        if let Some(b) = lattice.bonds().iter().find(|b| b.j < 0.0) {
-            return Err(McError::WolffNotApplicable {
-                detail: format!("a coupling is J = {}", b.j),
-            });
-        }
+    // Antiferromagnetic bonds are checked on the torus: a sublattice gauge may make
+    // them ferromagnetic (super::gauge).
+    if config.algorithm == Algorithm::Wolff && field != 0.0 {
+        return Err(McError::WolffNotApplicable {
+            detail: format!("the field is h = {field}"),
+        });
     }
     Ok(())
 }
@@ -250,18 +254,18 @@ mod tests {
     #[test]
     fn sizes_work_and_memory_grow_with_the_torus() {
         let lattice = square();
-        let p = plan(&lattice, &[16, 8, 16], &config(), 2).unwrap();
+        let p = plan(&lattice, &[16, 8, 16], &config(), &Order::Uniform, 2).unwrap();
         assert_eq!(p.sizes, vec![8, 16]);
         assert_eq!(p.sites, vec![64, 256]);
         // (64 + 256) sites × 110 sweeps × 2 temperatures.
         assert_eq!(p.site_updates, 320.0 * 110.0 * 2.0);
-        let bigger = plan(&lattice, &[8, 1024], &config(), 2).unwrap();
+        let bigger = plan(&lattice, &[8, 1024], &config(), &Order::Uniform, 2).unwrap();
         assert!(bigger.bytes > 100 * p.bytes / 2);
     }
 
     #[test]
     fn a_huge_torus_is_refused_with_the_limit() {
-        let e = plan(&square(), &[100_000], &config(), 2).unwrap_err();
+        let e = plan(&square(), &[100_000], &config(), &Order::Uniform, 2).unwrap_err();
         let text = e.to_string();
         assert!(matches!(e, McError::TooMuchMemory { .. }), "{e:?}");
         assert!(
@@ -270,7 +274,7 @@ mod tests {
         );
         // run() refuses it the same way, before building the torus.
         assert!(matches!(
-            run(&square(), &[100_000], &config(), None),
+            run(&square(), &[100_000], &config(), &Order::Uniform, None),
             Err(McError::TooMuchMemory { .. })
         ));
     }
@@ -283,7 +287,7 @@ mod tests {
         };
         // Too few sweeps is named even when the size is absurd: the cheap checks come first.
         assert!(matches!(
-            plan(&square(), &[1_000_000], &few, 2),
+            plan(&square(), &[1_000_000], &few, &Order::Uniform, 2),
             Err(McError::TooFewSweeps { .. })
         ));
         let cold = McConfig {
@@ -291,7 +295,7 @@ mod tests {
             ..config()
         };
         assert!(matches!(
-            plan(&square(), &[8], &cold, 2),
+            plan(&square(), &[8], &cold, &Order::Uniform, 2),
             Err(McError::BadTemperature(_))
         ));
         let forced = McConfig {
@@ -299,11 +303,11 @@ mod tests {
             ..config()
         };
         assert!(matches!(
-            plan(&square().with_field(0.5), &[8], &forced, 2),
+            plan(&square().with_field(0.5), &[8], &forced, &Order::Uniform, 2),
             Err(McError::WolffNotApplicable { .. })
         ));
         assert!(matches!(
-            plan(&square(), &[], &config(), 2),
+            plan(&square(), &[], &config(), &Order::Uniform, 2),
             Err(McError::Empty(_))
         ));
     }

@@ -75,4 +75,20 @@ pub enum McError {
         /// Which condition fails.
         detail: String,
     },
+    /// A torus size that the order parameter's pattern does not tile.
+    #[error("size {size} is not a multiple of {period}, the period in cells of the ordering pattern measured; use {suggestion}")]
+    Incommensurate {
+        /// The linear size asked for.
+        size: usize,
+        /// The pattern's period in cells.
+        period: usize,
+        /// Nearby sizes that fit.
+        suggestion: String,
+    },
+    /// Order-parameter weights that cannot be used.
+    #[error("order parameter: {detail}")]
+    BadOrder {
+        /// What is wrong with them.
+        detail: String,
+    },
 }

@@ -3,6 +3,9 @@
 //!
 //! * [`neighbours`]: the torus as a flat compressed-sparse-row neighbour table;
 //! * [`wolff`]: single-cluster updates (Wolff 1989) for ferromagnets without field;
+//! * [`gauge`]: the sublattice flip that makes a bipartite antiferromagnet a ferromagnet;
+//! * [`order`]: the order parameter measured (uniform m, or the projection on an
+//!   ordering pattern);
 //! * [`metropolis`]: sequential single-spin Metropolis sweeps for everything else;
 //! * [`observables`]: per-sweep measurements, binning-analysis error bars and
 //!   jackknife estimates of the Binder cumulant, specific heat and susceptibility;
@@ -29,31 +32,34 @@
 //!         edges.push((i, x + l * ((y + 1) % l), 1.0));
 //!     }
 //! }
-//! let system = System { size: l, neighbours: Neighbours::from_edges(l * l, &edges).unwrap(), field: 0.0 };
+//! let system = System::new(l, Neighbours::from_edges(l * l, &edges).unwrap(), 0.0);
 //! let config = McConfig { temperatures: vec![2.0, 3.0], sweeps: 200, warmup: 20, ..McConfig::default() };
 //! let result = run_systems(&[system], &config, None).unwrap();
 //! assert_eq!(result.points.len(), 2);
-//! assert!(result.points[0].energy < result.points[1].energy);
+//! assert!(result.points[0].estimates.energy < result.points[1].estimates.energy);
 //! ```
 
 pub mod binder;
 pub mod budget;
 pub mod error;
+pub mod gauge;
 pub mod metropolis;
 pub mod neighbours;
 pub mod observables;
+pub mod order;
 pub mod report;
 pub mod rng;
 pub mod run;
 pub mod wolff;
 
-pub use binder::{binder_crossing, Crossing, TcEstimate};
+pub use binder::{assess_tc, binder_crossing, Crossing, TcAssessment, TcEstimate};
 pub use budget::{plan, RunPlan};
 pub use error::McError;
 pub use metropolis::Metropolis;
 pub use neighbours::Neighbours;
 pub use observables::{BinnedSeries, Estimates};
-pub use report::McReport;
+pub use order::{CellOrder, Order, OrderPattern};
+pub use report::{prepare, McReport, OrderChoice, Prepared};
 pub use run::{
     run, run_systems, simulate_point, Algorithm, McConfig, McPoint, McResult, Progress, System,
 };

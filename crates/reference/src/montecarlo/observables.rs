@@ -1,37 +1,44 @@
 //! Measurements and their statistics.
 //!
-//! Every sweep records the sample `[e, e², |m|, m², m⁴]` (e = E/N, m = M/N). Samples are
+//! Every sweep records the sample `[e, e², |M|, M², M⁴, |m|]` (e = E/N; M the order
+//! parameter of the run, [`super::order`]: the projection of the spins on the ordering
+//! pattern, which is the magnetisation m = (Σ s_i)/N for uniform order; |m| the uniform
+//! magnetisation, kept beside it). Samples are
 //! kept in at most [`BinnedSeries::CAPACITY`] bins: when the store fills, neighbouring
 //! bins are merged and the bin size doubles, so memory stays fixed however long the run.
 //!
 //! Error bars of plain means come from a binning analysis (Flyvbjerg & Petersen 1989,
 //! J. Chem. Phys. 91, 461): bins of doubling size until fewer than [`MIN_BINS`] remain;
 //! the largest of these estimates is reported (the plateau value when the series is long
-//! enough). Non-linear quantities — the Binder cumulant `U4 = 1 - ⟨m⁴⟩ / (3⟨m²⟩²)`
+//! enough). Non-linear quantities — the Binder cumulant `U4 = 1 - ⟨M⁴⟩ / (3⟨M²⟩²)`
 //! (Binder 1981, Z. Phys. B 43, 119), the specific heat `C = N(⟨e²⟩ - ⟨e⟩²)/T²` and the
-//! susceptibility `χ = N(⟨m²⟩ - ⟨|m|⟩²)/T` — get jackknife errors over [`MIN_BINS`]
+//! susceptibility `χ = N(⟨M²⟩ - ⟨|M|⟩²)/T` — get jackknife errors over [`MIN_BINS`]
 //! blocks (Efron 1982).
 
 /// Number of observables per sample.
-pub const K: usize = 5;
+pub const K: usize = 6;
 /// Index of e in a sample.
 pub const E: usize = 0;
 /// Index of e².
 pub const E2: usize = 1;
-/// Index of |m|.
+/// Index of |M|, the length of the order parameter.
 pub const ABS_M: usize = 2;
-/// Index of m².
+/// Index of M².
 pub const M2: usize = 3;
-/// Index of m⁴.
+/// Index of M⁴.
 pub const M4: usize = 4;
+/// Index of the uniform |m|.
+pub const ABS_UNIFORM: usize = 5;
 /// Fewest bins a binning level or a jackknife may use (common practice: ~30 bins keep
 /// the relative uncertainty of an error estimate near 1/√(2·31) ≈ 13%).
 pub const MIN_BINS: usize = 32;
 
-/// The sample recorded for energy per site `e` and magnetisation per site `m`.
-pub fn sample(e: f64, m: f64) -> [f64; K] {
-    let m2 = m * m;
-    [e, e * e, m.abs(), m2, m2 * m2]
+/// The sample recorded for energy per site `e`, order parameter `order` (its length
+/// |M|, or the signed magnetisation for uniform order) and uniform magnetisation per
+/// site `m`.
+pub fn sample(e: f64, order: f64, m: f64) -> [f64; K] {
+    let m2 = order * order;
+    [e, e * e, order.abs(), m2, m2 * m2, m.abs()]
 }
 
 /// A time series of samples held as bins of equal, doubling size.
@@ -187,8 +194,10 @@ pub fn jackknife(bins: &[[f64; K]], blocks: usize, f: impl Fn(&[f64; K]) -> f64)
     (all, var.sqrt())
 }
 
-/// Binder cumulant `U4 = 1 - ⟨m⁴⟩/(3⟨m²⟩²)` from sample means; 0 (its value for a
-/// Gaussian, i.e. disordered, distribution) when m vanished in every sample.
+/// Binder cumulant `U4 = 1 - ⟨M⁴⟩/(3⟨M²⟩²)` of the order parameter from sample means; 0
+/// (its value for a one-component Gaussian, i.e. disordered, distribution) when M
+/// vanished in every sample. For an n-component order parameter the disordered value
+/// is `1 - (n + 2)/(3n)` (1/3 for n = 2), the ordered one 2/3 for every n.
 pub fn binder(means: &[f64; K]) -> f64 {
     if means[M2] > 0.0 {
         1.0 - means[M4] / (3.0 * means[M2] * means[M2])
@@ -197,22 +206,26 @@ pub fn binder(means: &[f64; K]) -> f64 {
     }
 }
 
-/// Everything reported for one (size, temperature) point.
-#[derive(Debug, Clone, Copy, PartialEq)]
+/// Everything reported for one (size, temperature) point. The magnetisation-like
+/// entries are of the run's order parameter M ([`super::order`]): for uniform order
+/// M = m, the magnetisation per site; for Néel order the staggered magnetisation. The
+/// uniform |m| is kept beside them (`uniform_magnetization`). Serialised with these
+/// field names as keys (the JSON contract of `mc`).
+#[derive(Debug, Clone, Copy, PartialEq, Default, serde::Serialize)]
 pub struct Estimates {
     /// ⟨e⟩, energy per site.
     pub energy: f64,
     /// Its binning error.
     pub energy_error: f64,
-    /// ⟨|m|⟩ per site.
+    /// ⟨|M|⟩, the order parameter per site.
     pub abs_magnetization: f64,
     /// Its binning error.
     pub abs_magnetization_error: f64,
-    /// ⟨m²⟩.
+    /// ⟨M²⟩.
     pub m2: f64,
     /// Its binning error.
     pub m2_error: f64,
-    /// U4 = 1 - ⟨m⁴⟩/(3⟨m²⟩²).
+    /// U4 = 1 - ⟨M⁴⟩/(3⟨M²⟩²).
     pub binder: f64,
     /// Jackknife error of U4.
     pub binder_error: f64,
@@ -220,11 +233,16 @@ pub struct Estimates {
     pub specific_heat: f64,
     /// Jackknife error of C.
     pub specific_heat_error: f64,
-    /// χ = N(⟨m²⟩ - ⟨|m|⟩²)/T per site.
+    /// χ = N(⟨M²⟩ - ⟨|M|⟩²)/T per site.
     pub susceptibility: f64,
     /// Jackknife error of χ.
     pub susceptibility_error: f64,
-    /// Whether the binning errors of e, |m| and m² reached a plateau.
+    /// ⟨|m|⟩ of the uniform magnetisation per site (equal to `abs_magnetization` for
+    /// uniform order).
+    pub uniform_magnetization: f64,
+    /// Its binning error.
+    pub uniform_magnetization_error: f64,
+    /// Whether the binning errors of e, |M| and M² reached a plateau.
     pub errors_converged: bool,
 }
 
@@ -235,6 +253,7 @@ pub fn estimate(series: &BinnedSeries, sites: usize, t: f64) -> Estimates {
     let e = binning_error(&series.column(E));
     let abs_m = binning_error(&series.column(ABS_M));
     let m2 = binning_error(&series.column(M2));
+    let uniform = binning_error(&series.column(ABS_UNIFORM));
     let heat = |x: &[f64; K]| n * (x[E2] - x[E] * x[E]) / (t * t);
     let chi = |x: &[f64; K]| n * (x[M2] - x[ABS_M] * x[ABS_M]) / t;
     let (_, binder_error) = jackknife(series.bins(), MIN_BINS, binder);
@@ -253,6 +272,8 @@ pub fn estimate(series: &BinnedSeries, sites: usize, t: f64) -> Estimates {
         specific_heat_error,
         susceptibility: chi(&means).max(0.0),
         susceptibility_error,
+        uniform_magnetization: means[ABS_UNIFORM],
+        uniform_magnetization_error: uniform.error,
         errors_converged: e.converged && abs_m.converged && m2.converged,
     }
 }
@@ -267,7 +288,7 @@ mod tests {
         let mut s = BinnedSeries::new();
         let n = BinnedSeries::CAPACITY * 2 + 3;
         for i in 0..n {
-            s.push(sample(i as f64, 0.0));
+            s.push(sample(i as f64, 0.0, 0.0));
         }
         assert_eq!(s.len(), n);
         // Merged at CAPACITY samples (to size 2) and again at 2·CAPACITY (to size 4).
@@ -312,7 +333,9 @@ mod tests {
 
     #[test]
     fn jackknife_of_a_linear_function_is_the_standard_error() {
-        let bins: Vec<[f64; K]> = (0..64).map(|i| [i as f64, 0.0, 0.0, 0.0, 0.0]).collect();
+        let bins: Vec<[f64; K]> = (0..64)
+            .map(|i| [i as f64, 0.0, 0.0, 0.0, 0.0, 0.0])
+            .collect();
         let (v, err) = jackknife(&bins, 64, |x| 2.0 * x[E]);
         let mean = 31.5;
         let sd = (bins.iter().map(|b| (b[E] - mean).powi(2)).sum::<f64>() / 63.0).sqrt();
@@ -323,7 +346,7 @@ mod tests {
     #[test]
     fn binder_limits() {
         // Ordered: m = ±1 always → U4 = 2/3; Gaussian m → 0 (Binder 1981).
-        assert!((binder(&sample(0.0, 1.0)) - 2.0 / 3.0).abs() < 1e-15);
-        assert_eq!(binder(&sample(0.0, 0.0)), 0.0);
+        assert!((binder(&sample(0.0, 1.0, 1.0)) - 2.0 / 3.0).abs() < 1e-15);
+        assert_eq!(binder(&sample(0.0, 0.0, 0.0)), 0.0);
     }
 }

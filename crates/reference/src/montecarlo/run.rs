@@ -4,8 +4,11 @@
 //!
 //! Each point starts from all spins up, runs `warmup` sweeps, then `sweeps` measured
 //! sweeps, one sample after each. For Wolff the second half of the warmup sets the
-//! clusters per measured sweep (see [`super::wolff`]). Wolff clusters are used when every J ≥ 0 and h = 0,
-//! Metropolis sweeps otherwise (or as [`Algorithm`] forces).
+//! clusters per measured sweep (see [`super::wolff`]). Wolff clusters are used when every
+//! J ≥ 0 and h = 0, or when h = 0 and a sublattice gauge makes every bond ferromagnetic
+//! (an antiferromagnet on a bipartite lattice, [`super::gauge`]); Metropolis sweeps
+//! otherwise (or as [`Algorithm`] forces). Each sample records the energy, the order
+//! parameter of the run ([`super::order`]) and the uniform magnetisation.
 
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::time::Instant;
@@ -16,9 +19,11 @@ use rungs_lattice::{Lattice, Torus};
 use super::binder::{binder_crossing, TcEstimate};
 use super::budget::{check_run, plan};
 use super::error::McError;
+use super::gauge::ferromagnetic_gauge;
 use super::metropolis::Metropolis;
 use super::neighbours::Neighbours;
-use super::observables::{estimate, sample, BinnedSeries, MIN_BINS};
+use super::observables::{estimate, sample, BinnedSeries, Estimates, MIN_BINS};
+use super::order::{Order, OrderPattern};
 use super::rng::{point_seed, rng_from_seed, McRng};
 use super::wolff::Wolff;
 
@@ -76,20 +81,81 @@ impl Default for McConfig {
     }
 }
 
-/// One finite torus to simulate: its neighbour table, field and linear size (the label
-/// used in results and in the Binder analysis).
+/// One finite torus to simulate: its neighbour table, field, linear size (the label
+/// used in results and in the Binder analysis) and what to measure.
 #[derive(Debug, Clone, PartialEq)]
 pub struct System {
     /// Linear size (cells per direction).
     pub size: usize,
-    /// Bonds of the torus.
+    /// Bonds of the torus (after the gauge, if `gauged`).
     pub neighbours: Neighbours,
     /// Uniform field h.
     pub field: f64,
+    /// The order parameter M on this torus, in the simulated spins.
+    pub order: OrderPattern,
+    /// The uniform magnetisation m of the physical spins, in the simulated spins: plain
+    /// (no weights), or the gauge ε when `gauged`.
+    pub magnetization: OrderPattern,
+    /// Whether the spins simulated are `σ_i = ε_i s_i` of a sublattice gauge
+    /// ([`super::gauge`]) that made every bond ferromagnetic.
+    pub gauged: bool,
 }
 
-/// Results of one (size, temperature) point; values per site.
-#[derive(Debug, Clone, PartialEq, Default)]
+impl System {
+    /// A torus measuring the uniform magnetisation, with no gauge.
+    pub fn new(size: usize, neighbours: Neighbours, field: f64) -> System {
+        System {
+            size,
+            neighbours,
+            field,
+            order: OrderPattern::uniform(),
+            magnetization: OrderPattern::uniform(),
+            gauged: false,
+        }
+    }
+
+    /// The torus of `lattice` at linear size `size`, measuring `order` (whose period
+    /// must divide `size`). When the field is zero, some bond is antiferromagnetic and
+    /// `algorithm` is not [`Algorithm::Metropolis`], the sublattice gauge that makes
+    /// every bond ferromagnetic is applied if one exists ([`super::gauge`]), so that
+    /// Wolff clusters can run; the order parameter and m are then read through it.
+    pub fn on_torus(
+        lattice: &Lattice,
+        size: usize,
+        order: &Order,
+        algorithm: Algorithm,
+    ) -> Result<System, McError> {
+        order.check_size(size)?;
+        let torus = Torus::new(lattice, &vec![size; lattice.dimension()])
+            .map_err(|source| McError::Torus { size, source })?;
+        let pattern = order.on_torus(&torus)?;
+        let field = lattice.field();
+        let edges = torus.edges();
+        let ferromagnetic = edges.iter().all(|e| e.2 >= 0.0);
+        if !ferromagnetic && field == 0.0 && algorithm != Algorithm::Metropolis {
+            if let Some(eps) = ferromagnetic_gauge(torus.sites(), &edges) {
+                // ε_i ε_j J_ij ≥ 0 on every bond, so the gauged coupling is |J_ij|.
+                let gauged: Vec<_> = edges.iter().map(|&(i, j, c)| (i, j, c.abs())).collect();
+                return Ok(System {
+                    size,
+                    neighbours: Neighbours::from_edges(torus.sites(), &gauged)?,
+                    field,
+                    order: pattern.gauged(&eps)?,
+                    magnetization: OrderPattern::uniform().gauged(&eps)?,
+                    gauged: true,
+                });
+            }
+        }
+        Ok(System {
+            order: pattern,
+            ..System::new(size, Neighbours::from_edges(torus.sites(), &edges)?, field)
+        })
+    }
+}
+
+/// Results of one (size, temperature) point; values per site. Serialised (JSON) with
+/// the estimates' keys inline.
+#[derive(Debug, Clone, PartialEq, Default, serde::Serialize)]
 pub struct McPoint {
     /// Linear size (cells per direction).
     pub size: usize,
@@ -97,38 +163,22 @@ pub struct McPoint {
     pub sites: usize,
     /// Temperature.
     pub temperature: f64,
-    /// ⟨e⟩.
-    pub energy: f64,
-    /// Binning error of ⟨e⟩.
-    pub energy_error: f64,
-    /// ⟨|m|⟩.
-    pub abs_magnetization: f64,
-    /// Binning error of ⟨|m|⟩.
-    pub abs_magnetization_error: f64,
-    /// ⟨m²⟩.
-    pub m2: f64,
-    /// Binning error of ⟨m²⟩.
-    pub m2_error: f64,
-    /// Binder cumulant U4 = 1 - ⟨m⁴⟩/(3⟨m²⟩²).
-    pub binder: f64,
-    /// Jackknife error of U4.
-    pub binder_error: f64,
-    /// C = N(⟨e²⟩ - ⟨e⟩²)/T².
-    pub specific_heat: f64,
-    /// Jackknife error of C.
-    pub specific_heat_error: f64,
-    /// χ = N(⟨m²⟩ - ⟨|m|⟩²)/T.
-    pub susceptibility: f64,
-    /// Jackknife error of χ.
-    pub susceptibility_error: f64,
-    /// Whether the binning errors reached a plateau (if not, run longer).
-    pub errors_converged: bool,
+    /// The measured estimates (energy, order parameter, U4, C, χ).
+    #[serde(flatten)]
+    pub estimates: Estimates,
     /// The algorithm used (`Wolff` or `Metropolis`).
+    #[serde(serialize_with = "algorithm_name")]
     pub algorithm: Algorithm,
+    /// Whether the spins were simulated in a sublattice gauge ([`System::gauged`]).
+    pub gauged: bool,
     /// Spins flipped during the measured sweeps.
     pub spins_flipped: u64,
     /// Wall-clock seconds for the point, warmup included.
     pub seconds: f64,
+}
+
+fn algorithm_name<S: serde::Serializer>(a: &Algorithm, s: S) -> Result<S::Ok, S::Error> {
+    s.serialize_str(a.name())
 }
 
 /// A whole run.
@@ -145,27 +195,22 @@ pub struct McResult {
 }
 
 /// Simulate `lattice` on `L × … × L` tori for every L in `sizes` (sorted, duplicates
-/// dropped) at every temperature of `config`. Every argument is checked, and the memory
-/// the run needs estimated, before any torus is built ([`plan`]).
+/// dropped) at every temperature of `config`, measuring `order`. Every argument is
+/// checked, and the memory the run needs estimated, before any torus is built
+/// ([`plan`]); a size that is not a multiple of the order's period is refused
+/// ([`McError::Incommensurate`]; [`Order::fit_size`] rounds up).
 pub fn run(
     lattice: &Lattice,
     sizes: &[usize],
     config: &McConfig,
+    order: &Order,
     progress: Option<Progress>,
 ) -> Result<McResult, McError> {
-    let plan = plan(lattice, sizes, config, rayon::current_num_threads())?;
+    let plan = plan(lattice, sizes, config, order, rayon::current_num_threads())?;
     let systems = plan
         .sizes
         .iter()
-        .map(|&size| {
-            let torus = Torus::new(lattice, &vec![size; lattice.dimension()])
-                .map_err(|source| McError::Torus { size, source })?;
-            Ok(System {
-                size,
-                neighbours: Neighbours::from_torus(&torus)?,
-                field: lattice.field(),
-            })
-        })
+        .map(|&size| System::on_torus(lattice, size, order, config.algorithm))
         .collect::<Result<Vec<_>, McError>>()?;
     run_systems(&systems, config, progress)
 }
@@ -327,31 +372,25 @@ fn simulate(
     for _ in 0..config.sweeps {
         flipped += updater.sweep(n, &mut spins, &mut rng);
         let (e, m) = n.energy_magnetization(&spins, system.field);
-        series.push(sample(e * inv, m as f64 * inv));
+        let uniform = system.magnetization.length(&spins, m);
+        let order = if system.order.is_uniform() && !system.gauged {
+            uniform
+        } else {
+            system.order.length(&spins, m)
+        };
+        series.push(sample(e * inv, order, uniform));
         tick(&mut pending);
     }
     if pending > 0 {
         report(pending);
     }
-    let est = estimate(&series, sites, t);
     Ok(McPoint {
         size: system.size,
         sites,
         temperature: t,
-        energy: est.energy,
-        energy_error: est.energy_error,
-        abs_magnetization: est.abs_magnetization,
-        abs_magnetization_error: est.abs_magnetization_error,
-        m2: est.m2,
-        m2_error: est.m2_error,
-        binder: est.binder,
-        binder_error: est.binder_error,
-        specific_heat: est.specific_heat,
-        specific_heat_error: est.specific_heat_error,
-        susceptibility: est.susceptibility,
-        susceptibility_error: est.susceptibility_error,
-        errors_converged: est.errors_converged,
+        estimates: estimate(&series, sites, t),
         algorithm,
+        gauged: system.gauged,
         spins_flipped: flipped,
         seconds: start.elapsed().as_secs_f64(),
     })
@@ -365,11 +404,7 @@ mod tests {
 
     fn ring(size: usize, j: f64, field: f64) -> System {
         let edges: Vec<_> = (0..size).map(|i| (i, (i + 1) % size, j)).collect();
-        System {
-            size,
-            neighbours: Neighbours::from_edges(size, &edges).unwrap(),
-            field,
-        }
+        System::new(size, Neighbours::from_edges(size, &edges).unwrap(), field)
     }
 
     fn config() -> McConfig {
@@ -457,10 +492,10 @@ mod tests {
         let p = &run_systems(&[ring(64, 1.0, 0.0)], &c, None).unwrap().points[0];
         let exact = -(1.0f64).tanh();
         assert!(
-            (p.energy - exact).abs() < 4.0 * p.energy_error,
+            (p.estimates.energy - exact).abs() < 4.0 * p.estimates.energy_error,
             "{} ± {}",
-            p.energy,
-            p.energy_error
+            p.estimates.energy,
+            p.estimates.energy_error
         );
     }
 }
