@@ -340,7 +340,7 @@ impl QProbe<'_, '_> {
 }
 
 impl Probe for QProbe<'_, '_> {
-    fn value(&self, t: f64) -> Result<f64, SolveError> {
+    fn value(&mut self, t: f64) -> Result<f64, SolveError> {
         (self.observe)(&format!(
             "{}: T = {}",
             self.phase.borrow(),
@@ -433,7 +433,7 @@ pub fn critical_temperature_observed(
         }
     }
     let candidates: Vec<Candidate> = qs.into_iter().map(watch).collect();
-    let probe = QProbe {
+    let mut probe = QProbe {
         lattice,
         follower: &follower,
         candidates: RefCell::new(candidates),
@@ -449,7 +449,7 @@ pub fn critical_temperature_observed(
     let mut notes = Vec::new();
     for _round in 0..4 {
         *probe.phase.borrow_mut() = "stepping down";
-        let bracket = step_down(&probe, t_start, t_min, rules)?;
+        let bracket = step_down(&mut probe, t_start, t_min, rules)?;
         let (lo, hi) = match bracket {
             Bracket::Found { lo, hi } => (lo, hi),
             Bracket::Stable { down_to } | Bracket::Noise { at: down_to } => {
@@ -463,7 +463,7 @@ pub fn critical_temperature_observed(
             }
         };
         *probe.phase.borrow_mut() = "root";
-        let tc = refine(&probe, lo, hi, options.relative_tolerance)?;
+        let tc = refine(&mut probe, lo, hi, options.relative_tolerance)?;
         observe(&format!(
             "checking every wavevector near Tc = {}",
             crate::report_num(tc)
