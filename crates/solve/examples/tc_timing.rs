@@ -2,7 +2,8 @@
 //! (`cargo run --release -p rungs-solve --example tc_timing -- simple_cubic cube 200`).
 //! Building the level is included, as in the `tc` criterion benchmark. With a count of 1
 //! it is the run to hand to `valgrind --tool=callgrind`, whose instruction counts do not
-//! depend on the machine's load.
+//! depend on the machine's load. With the level `all`, every level of the lattice once,
+//! Tc to full precision (to compare two builds).
 use std::path::Path;
 use std::time::Instant;
 
@@ -19,6 +20,20 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
             .join("../../lattices")
             .join(format!("{stem}.yaml")),
     )?;
+    if name == "all" {
+        for name in Level::names(&lattice) {
+            let level = Level::build(&lattice, &name)?;
+            let clock = Instant::now();
+            let cp = critical_temperature(&lattice, &level, TcOptions::default());
+            let tc = cp.map(|cp| cp.tc.map_or("none".to_string(), |t| format!("{t:.15}")));
+            println!(
+                "{stem}/{name}: Tc {} ({:.1} ms)",
+                tc.unwrap_or_else(|e| format!("error: {e}")),
+                1e3 * clock.elapsed().as_secs_f64()
+            );
+        }
+        return Ok(());
+    }
     let clock = Instant::now();
     let mut tc = None;
     for _ in 0..count.max(1) {
