@@ -7,6 +7,7 @@
 //! worker threads costs more than it saves (and the workers spin while they wait, which
 //! on a shared machine is CPU time taken from everyone else).
 
+use faer::diag::Diag;
 use faer::dyn_stack::{MemBuffer, MemStack};
 use faer::linalg::cholesky::llt::factor::{cholesky_in_place, cholesky_in_place_scratch};
 use faer::linalg::evd::{self_adjoint_evd, self_adjoint_evd_scratch, ComputeEigenvectors};
@@ -14,7 +15,6 @@ use faer::linalg::triangular_solve::{
     solve_lower_triangular_in_place, solve_upper_triangular_in_place,
 };
 use faer::traits::ComplexField;
-use faer::diag::Diag;
 use faer::{Mat, Par};
 use nalgebra::{Complex, DMatrix, DVector};
 

@@ -329,8 +329,7 @@ impl QProbe<'_, '_> {
             // The symmetric subspace is an accelerator: when the full H(q) is not
             // positive definite although the subspace says stable, a less symmetric mode
             // is the soft one, and this candidate is watched on the full block from now.
-            if full_check && c.projection.is_some() && v > 0.0 && !qh.is_positive_definite(&c.q)
-            {
+            if full_check && c.projection.is_some() && v > 0.0 && !qh.is_positive_definite(&c.q) {
                 c.projection = None;
                 v = c.value(&qh);
             }
