@@ -774,9 +774,10 @@ fn finish(
     // Degeneracy: the instability as low over the whole zone, or along a line through q.
     let mut ordering = ordering;
     // |λ(p) − λ*| < tol, by two Cholesky factorisations (cheaper than an eigensolve).
+    // The upper test first: it fails for almost every p, and one factorisation decides.
     let level_with = |p: &Wavevector| {
-        qh.is_positive_definite_above(p, mode.value - 1e-7)
-            && !qh.is_positive_definite_above(p, mode.value + 1e-7)
+        !qh.is_positive_definite_above(p, mode.value + 1e-7)
+            && qh.is_positive_definite_above(p, mode.value - 1e-7)
     };
     let zone_flat = d > 0 && zone_grid(d, 4).iter().all(level_with);
     if zone_flat {
