@@ -189,7 +189,12 @@ impl<'a> Disordered<'a> {
         } else {
             Block::all(lv)
         };
-        let opts = NewtonOptions::default();
+        // Chord steps: a warm start is close, Newton converges fast, and while it does
+        // the last factorisation serves again (no new precise Hessian per step).
+        let opts = NewtonOptions {
+            chord: true,
+            ..NewtonOptions::default()
+        };
         let cold = || -> Result<Solved, SolveError> {
             let f = Functional::with_basis(lv, t, self.field, self.basis.clone(), None);
             let m = if self.field == 0.0 {

@@ -123,16 +123,36 @@ pub fn min_eigenvalue_complex(m: &DMatrix<Complex<f64>>) -> f64 {
         .unwrap_or(f64::NAN)
 }
 
+/// The Cholesky factor `M = L Lᵀ` of a real symmetric positive definite matrix, kept
+/// to solve with it again.
+#[derive(Debug, Clone)]
+pub struct SpdFactor {
+    l: Mat<f64>,
+}
+
+impl SpdFactor {
+    /// Factorise `m`; `None` when it is not positive definite.
+    pub fn new(m: &DMatrix<f64>) -> Option<SpdFactor> {
+        Some(SpdFactor {
+            l: cholesky(to_faer(m))?,
+        })
+    }
+
+    /// `x = M⁻¹ rhs`: `L y = rhs`, then `Lᵀ x = y`.
+    pub fn solve(&self, rhs: &[f64]) -> Vec<f64> {
+        let n = self.l.nrows();
+        let mut b = Mat::from_fn(rhs.len(), 1, |i, _| rhs[i]);
+        // Only the lower triangle of `l` is read.
+        solve_lower_triangular_in_place(self.l.as_ref(), b.as_mut(), par(n));
+        solve_upper_triangular_in_place(self.l.as_ref().transpose(), b.as_mut(), par(n));
+        (0..rhs.len()).map(|i| b[(i, 0)]).collect()
+    }
+}
+
 /// Solve `M x = rhs` for a real symmetric positive definite M (blocked Cholesky);
 /// `None` when M is not positive definite.
 pub fn solve_spd(m: &DMatrix<f64>, rhs: &[f64]) -> Option<Vec<f64>> {
-    let n = m.nrows();
-    let l = cholesky(to_faer(m))?;
-    let mut b = Mat::from_fn(rhs.len(), 1, |i, _| rhs[i]);
-    // L y = b, then Lᵀ x = y (only the lower triangle of `l` is read).
-    solve_lower_triangular_in_place(l.as_ref(), b.as_mut(), par(n));
-    solve_upper_triangular_in_place(l.as_ref().transpose(), b.as_mut(), par(n));
-    Some((0..rhs.len()).map(|i| b[(i, 0)]).collect())
+    Some(SpdFactor::new(m)?.solve(rhs))
 }
 
 /// Whether a real symmetric matrix is positive definite (Cholesky succeeds).
