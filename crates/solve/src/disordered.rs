@@ -189,12 +189,7 @@ impl<'a> Disordered<'a> {
         } else {
             Block::all(lv)
         };
-        // Chord steps: a warm start is close, Newton converges fast, and while it does
-        // the last factorisation serves again (no new precise Hessian per step).
-        let opts = NewtonOptions {
-            chord: true,
-            ..NewtonOptions::default()
-        };
+        let opts = NewtonOptions::default();
         let cold = || -> Result<Solved, SolveError> {
             let f = Functional::with_basis(lv, t, self.field, self.basis.clone(), None);
             let m = if self.field == 0.0 {
