@@ -27,6 +27,13 @@ pub trait Probe {
     fn noise(&self, _t: f64) -> f64 {
         0.0
     }
+    /// Whether the disordered state at `t` (already probed) is unstable although the
+    /// value is positive: the value is then a smooth function for the root finder
+    /// whose sign alone does not decide stability (e.g. `1/(bᵀH⁻¹b)`, positive while a
+    /// mode orthogonal to b is already soft). The step-down counts such a T as below Tc.
+    fn unstable(&self, _t: f64) -> bool {
+        false
+    }
     /// A label for errors.
     fn name(&self) -> &str;
 }
@@ -110,12 +117,12 @@ pub fn step_down(
     let mut t_hi = t_start;
     let mut f_hi = probe.value(t_hi)?;
     let mut grow = 0;
-    while f_hi <= 0.0 && grow < rules.max_grow {
+    while (f_hi <= 0.0 || probe.unstable(t_hi)) && grow < rules.max_grow {
         t_hi *= rules.grow;
         f_hi = probe.value(t_hi)?;
         grow += 1;
     }
-    if f_hi <= 0.0 {
+    if f_hi <= 0.0 || probe.unstable(t_hi) {
         return Err(SolveError::TcSearch {
             level: probe.name().to_string(),
             detail: format!("the disordered state is unstable even at T = {t_hi}"),
@@ -142,7 +149,7 @@ pub fn step_down(
         if f.abs() < probe.noise(next) {
             return Ok(Bracket::Noise { at: next });
         }
-        if f <= 0.0 {
+        if f <= 0.0 || probe.unstable(next) {
             return Ok(Bracket::Found { lo: next, hi: t });
         }
         prev = Some((t, f_hi));

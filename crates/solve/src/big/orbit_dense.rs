@@ -291,13 +291,15 @@ impl BigProbe<'_> {
     }
 }
 
-/// The search's view of g: its sign says stability. Where H_odd is not positive
-/// definite although `g > 0` (a mode orthogonal to the field went soft first) the
-/// paramagnet is unstable all the same: −g.
+/// The search's view of g: the root is where g changes sign; where H_odd is not
+/// positive definite although `g > 0` (a mode orthogonal to the field went soft first)
+/// the paramagnet is unstable all the same.
 impl crate::search::Probe for BigProbe<'_> {
     fn value(&mut self, t: f64) -> Result<f64, SolveError> {
-        let (g, pd) = self.g(t)?;
-        Ok(if pd || g <= 0.0 { g } else { -g })
+        Ok(self.g(t)?.0)
+    }
+    fn unstable(&self, t: f64) -> bool {
+        self.cache.borrow().iter().any(|c| c.0 == t && !c.2)
     }
     fn name(&self) -> &str {
         &self.f.level().name
