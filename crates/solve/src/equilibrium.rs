@@ -80,10 +80,12 @@ pub trait HessianSolver {
     }
 }
 
-/// The dense nalgebra Hessian of [`Functional::hessian_block`] with Cholesky solves.
+/// The dense nalgebra Hessian of [`Functional::hessian_block`] with Cholesky solves; the
+/// unshifted factor is kept for chord steps.
 #[derive(Debug, Default)]
 pub struct DenseSolver {
     h: Option<DMatrix<f64>>,
+    factor: Option<crate::linalg::SpdFactor>,
 }
 
 impl HessianSolver for DenseSolver {
@@ -93,7 +95,11 @@ impl HessianSolver for DenseSolver {
         } else {
             f.hessian_block(x, &block.vars, &block.pos)
         };
+        self.factor = None;
         self.h.is_some()
+    }
+    fn has_factor(&self) -> bool {
+        self.factor.is_some()
     }
     /// Shifts are relative to the diagonal (see [`HessianSolver::solve_shifted`] here).
     fn scale(&self) -> f64 {
@@ -103,6 +109,12 @@ impl HessianSolver for DenseSolver {
     /// Levenberg shift. At low temperature H's diagonal spans 1/p over tens of decades,
     /// and a shift proportional to the largest entry would swamp every soft direction.
     fn solve_shifted(&mut self, mu: f64, rhs: &[f64]) -> Option<Vec<f64>> {
+        if mu == 0.0 {
+            if self.factor.is_none() {
+                self.factor = Some(crate::linalg::SpdFactor::new(self.h.as_ref()?)?);
+            }
+            return self.factor.as_ref().map(|l| l.solve(rhs));
+        }
         let mut m = self.h.clone()?;
         if mu != 0.0 {
             let floor = 1e-300;

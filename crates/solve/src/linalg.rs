@@ -1,9 +1,81 @@
 //! Dense Hermitian kernels on faer (blocked, vectorised): the smallest eigenpair and the
 //! positive-definiteness test that every stability question comes down to. Matrices are
 //! built with nalgebra elsewhere and copied in (the copy is O(n²), the work O(n³)).
+//!
+//! Matrices below [`PARALLEL_ORDER`] are factorised on the calling thread: the dense
+//! Tc search factorises hundreds of matrices of order ~100, where handing blocks to
+//! worker threads costs more than it saves (and the workers spin while they wait, which
+//! on a shared machine is CPU time taken from everyone else).
 
-use faer::{Mat, Side};
+use faer::diag::Diag;
+use faer::dyn_stack::{MemBuffer, MemStack};
+use faer::linalg::cholesky::llt::factor::{cholesky_in_place, cholesky_in_place_scratch};
+use faer::linalg::evd::{self_adjoint_evd, self_adjoint_evd_scratch, ComputeEigenvectors};
+use faer::linalg::triangular_solve::{
+    solve_lower_triangular_in_place, solve_upper_triangular_in_place,
+};
+use faer::traits::ComplexField;
+use faer::{Mat, Par};
 use nalgebra::{Complex, DMatrix, DVector};
+
+/// Order from which factorisations use faer's global (multi-threaded) parallelism.
+pub const PARALLEL_ORDER: usize = 256;
+
+fn par(n: usize) -> Par {
+    if n < PARALLEL_ORDER {
+        Par::Seq
+    } else {
+        faer::get_global_parallelism()
+    }
+}
+
+/// The Cholesky factor `L` (lower triangle of the result) of a Hermitian matrix given
+/// by its lower triangle, `None` when it is not positive definite.
+fn cholesky<T: ComplexField>(mut a: Mat<T>) -> Option<Mat<T>> {
+    let n = a.nrows();
+    let par = par(n);
+    let mut mem = MemBuffer::new(cholesky_in_place_scratch::<T>(n, par, Default::default()));
+    cholesky_in_place(
+        a.as_mut(),
+        Default::default(),
+        par,
+        MemStack::new(&mut mem),
+        Default::default(),
+    )
+    .ok()?;
+    Some(a)
+}
+
+/// Eigenvalues (ascending) and, with `vectors`, the eigenvectors of a Hermitian matrix
+/// given by its lower triangle.
+fn eigen<T: ComplexField>(a: &Mat<T>, vectors: bool) -> Option<(Vec<T>, Option<Mat<T>>)> {
+    let n = a.nrows();
+    let par = par(n);
+    let compute = if vectors {
+        ComputeEigenvectors::Yes
+    } else {
+        ComputeEigenvectors::No
+    };
+    let mut s = Diag::<T>::zeros(n);
+    let mut u = vectors.then(|| Mat::<T>::zeros(n, n));
+    let mut mem = MemBuffer::new(self_adjoint_evd_scratch::<T>(
+        n,
+        compute,
+        par,
+        Default::default(),
+    ));
+    self_adjoint_evd(
+        a.as_ref(),
+        s.as_mut(),
+        u.as_mut().map(|u| u.as_mut()),
+        par,
+        MemStack::new(&mut mem),
+        Default::default(),
+    )
+    .ok()?;
+    let values = (0..n).map(|i| s[i].clone()).collect();
+    Some((values, u))
+}
 
 fn to_faer<T: Copy>(m: &DMatrix<T>) -> Mat<T> {
     Mat::from_fn(m.nrows(), m.ncols(), |i, j| m[(i, j)])
@@ -15,10 +87,9 @@ pub fn lowest_real(m: &DMatrix<f64>) -> Option<(f64, DVector<f64>)> {
     if n == 0 {
         return None;
     }
-    let eig = to_faer(m).self_adjoint_eigen(Side::Lower).ok()?;
-    let value = eig.S()[0];
-    let u = eig.U();
-    Some((value, DVector::from_fn(n, |i, _| u[(i, 0)])))
+    let (values, u) = eigen(&to_faer(m), true)?;
+    let u = u?;
+    Some((values[0], DVector::from_fn(n, |i, _| u[(i, 0)])))
 }
 
 /// The smallest eigenvalue of a complex Hermitian matrix and its unit eigenvector.
@@ -27,10 +98,9 @@ pub fn lowest_complex(m: &DMatrix<Complex<f64>>) -> Option<(f64, DVector<Complex
     if n == 0 {
         return None;
     }
-    let eig = to_faer(m).self_adjoint_eigen(Side::Lower).ok()?;
-    let value = eig.S()[0].re;
-    let u = eig.U();
-    Some((value, DVector::from_fn(n, |i, _| u[(i, 0)])))
+    let (values, u) = eigen(&to_faer(m), true)?;
+    let u = u?;
+    Some((values[0].re, DVector::from_fn(n, |i, _| u[(i, 0)])))
 }
 
 /// The smallest eigenvalue of a real symmetric matrix (+∞ for an empty one).
@@ -38,10 +108,8 @@ pub fn min_eigenvalue_real(m: &DMatrix<f64>) -> f64 {
     if m.nrows() == 0 {
         return f64::INFINITY;
     }
-    to_faer(m)
-        .self_adjoint_eigenvalues(Side::Lower)
-        .ok()
-        .and_then(|v| v.first().copied())
+    eigen(&to_faer(m), false)
+        .and_then(|(v, _)| v.first().copied())
         .unwrap_or(f64::NAN)
 }
 
@@ -50,31 +118,51 @@ pub fn min_eigenvalue_complex(m: &DMatrix<Complex<f64>>) -> f64 {
     if m.nrows() == 0 {
         return f64::INFINITY;
     }
-    to_faer(m)
-        .self_adjoint_eigenvalues(Side::Lower)
-        .ok()
-        .and_then(|v| v.first().copied())
+    eigen(&to_faer(m), false)
+        .and_then(|(v, _)| v.first().map(|c| c.re))
         .unwrap_or(f64::NAN)
+}
+
+/// The Cholesky factor `M = L Lᵀ` of a real symmetric positive definite matrix, kept
+/// to solve with it again.
+#[derive(Debug, Clone)]
+pub struct SpdFactor {
+    l: Mat<f64>,
+}
+
+impl SpdFactor {
+    /// Factorise `m`; `None` when it is not positive definite.
+    pub fn new(m: &DMatrix<f64>) -> Option<SpdFactor> {
+        Some(SpdFactor {
+            l: cholesky(to_faer(m))?,
+        })
+    }
+
+    /// `x = M⁻¹ rhs`: `L y = rhs`, then `Lᵀ x = y`.
+    pub fn solve(&self, rhs: &[f64]) -> Vec<f64> {
+        let n = self.l.nrows();
+        let mut b = Mat::from_fn(rhs.len(), 1, |i, _| rhs[i]);
+        // Only the lower triangle of `l` is read.
+        solve_lower_triangular_in_place(self.l.as_ref(), b.as_mut(), par(n));
+        solve_upper_triangular_in_place(self.l.as_ref().transpose(), b.as_mut(), par(n));
+        (0..rhs.len()).map(|i| b[(i, 0)]).collect()
+    }
 }
 
 /// Solve `M x = rhs` for a real symmetric positive definite M (blocked Cholesky);
 /// `None` when M is not positive definite.
 pub fn solve_spd(m: &DMatrix<f64>, rhs: &[f64]) -> Option<Vec<f64>> {
-    use faer::linalg::solvers::Solve;
-    let llt = to_faer(m).llt(Side::Lower).ok()?;
-    let mut b = Mat::from_fn(rhs.len(), 1, |i, _| rhs[i]);
-    llt.solve_in_place(b.as_mut());
-    Some((0..rhs.len()).map(|i| b[(i, 0)]).collect())
+    Some(SpdFactor::new(m)?.solve(rhs))
 }
 
 /// Whether a real symmetric matrix is positive definite (Cholesky succeeds).
 pub fn positive_definite_real(m: &DMatrix<f64>) -> bool {
-    m.nrows() == 0 || to_faer(m).llt(Side::Lower).is_ok()
+    m.nrows() == 0 || cholesky(to_faer(m)).is_some()
 }
 
 /// Whether a complex Hermitian matrix is positive definite (Cholesky succeeds).
 pub fn positive_definite_complex(m: &DMatrix<Complex<f64>>) -> bool {
-    m.nrows() == 0 || to_faer(m).llt(Side::Lower).is_ok()
+    m.nrows() == 0 || cholesky(to_faer(m)).is_some()
 }
 
 #[cfg(test)]

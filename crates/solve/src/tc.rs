@@ -320,12 +320,16 @@ impl QProbe<'_, '_> {
         let _ = &f;
         let noise = SCALED_NOISE;
         let (mut best, mut arg) = (f64::INFINITY, 0);
+        // While stepping down, whether a less symmetric mode went soft first is checked
+        // at every probe; inside the bracket (Brent) only once, just above the root
+        // found (see `critical_temperature_observed`).
+        let full_check = *self.phase.borrow() == STEPPING_DOWN;
         for (i, c) in self.candidates.borrow_mut().iter_mut().enumerate() {
             let mut v = c.value(&qh);
             // The symmetric subspace is an accelerator: when the full H(q) is not
             // positive definite although the subspace says stable, a less symmetric mode
             // is the soft one, and this candidate is watched on the full block from now.
-            if c.projection.is_some() && v > 0.0 && !qh.is_positive_definite(&c.q) {
+            if full_check && c.projection.is_some() && v > 0.0 && !qh.is_positive_definite(&c.q) {
                 c.projection = None;
                 v = c.value(&qh);
             }
@@ -340,7 +344,7 @@ impl QProbe<'_, '_> {
 }
 
 impl Probe for QProbe<'_, '_> {
-    fn value(&self, t: f64) -> Result<f64, SolveError> {
+    fn value(&mut self, t: f64) -> Result<f64, SolveError> {
         (self.observe)(&format!(
             "{}: T = {}",
             self.phase.borrow(),
@@ -362,6 +366,9 @@ impl Probe for QProbe<'_, '_> {
         &self.name
     }
 }
+
+/// The phase of the search in which every probe checks the full blocks.
+const STEPPING_DOWN: &str = "stepping down";
 
 /// Rounding scale of the eigenvalues of the scaled `H(q)` (entries O(1)): below it the
 /// sign of the smallest one cannot be trusted.
@@ -433,13 +440,13 @@ pub fn critical_temperature_observed(
         }
     }
     let candidates: Vec<Candidate> = qs.into_iter().map(watch).collect();
-    let probe = QProbe {
+    let mut probe = QProbe {
         lattice,
         follower: &follower,
         candidates: RefCell::new(candidates),
         name: level.name.clone(),
         last: RefCell::new((f64::NAN, 0.0, 0)),
-        phase: RefCell::new("stepping down"),
+        phase: RefCell::new(STEPPING_DOWN),
         observe,
     };
     let t_min = scale * options.lowest_fraction;
@@ -448,8 +455,8 @@ pub fn critical_temperature_observed(
     let mut t_start = options.start_below.unwrap_or(scale * 1.02);
     let mut notes = Vec::new();
     for _round in 0..4 {
-        *probe.phase.borrow_mut() = "stepping down";
-        let bracket = step_down(&probe, t_start, t_min, rules)?;
+        *probe.phase.borrow_mut() = STEPPING_DOWN;
+        let bracket = step_down(&mut probe, t_start, t_min, rules)?;
         let (lo, hi) = match bracket {
             Bracket::Found { lo, hi } => (lo, hi),
             Bracket::Stable { down_to } | Bracket::Noise { at: down_to } => {
@@ -463,7 +470,7 @@ pub fn critical_temperature_observed(
             }
         };
         *probe.phase.borrow_mut() = "root";
-        let tc = refine(&probe, lo, hi, options.relative_tolerance)?;
+        let tc = refine(&mut probe, lo, hi, options.relative_tolerance)?;
         observe(&format!(
             "checking every wavevector near Tc = {}",
             crate::report_num(tc)
@@ -517,6 +524,17 @@ pub fn critical_temperature_observed(
         let (fc, xc) = follower.solve(t_check)?;
         let qc = QHessian::scaled(&fc, lattice, &xc, follower.sector(), false)
             .ok_or_else(|| infeasible(&level.name, t_check))?;
+        // A candidate watched on its symmetric subspace whose full H(q) is not positive
+        // definite just above the root: a less symmetric mode there is the soft one; it
+        // is watched on the full block from now.
+        for c in probe.candidates.borrow().iter() {
+            if c.projection.is_some() && !qc.is_positive_definite(&c.q) {
+                new_q.push(Candidate {
+                    q: c.q,
+                    projection: None,
+                });
+            }
+        }
         for q in &verify {
             if !qc.is_positive_definite(q) {
                 let (qr, _) = pattern_search(q, d, 0.5 / verification_grid(d) as f64, |p| {
@@ -756,9 +774,10 @@ fn finish(
     // Degeneracy: the instability as low over the whole zone, or along a line through q.
     let mut ordering = ordering;
     // |λ(p) − λ*| < tol, by two Cholesky factorisations (cheaper than an eigensolve).
+    // The upper test first: it fails for almost every p, and one factorisation decides.
     let level_with = |p: &Wavevector| {
-        qh.is_positive_definite_above(p, mode.value - 1e-7)
-            && !qh.is_positive_definite_above(p, mode.value + 1e-7)
+        !qh.is_positive_definite_above(p, mode.value + 1e-7)
+            && qh.is_positive_definite_above(p, mode.value - 1e-7)
     };
     let zone_flat = d > 0 && zone_grid(d, 4).iter().all(level_with);
     if zone_flat {

@@ -4,8 +4,8 @@
 //!
 //! * [`model`]: F, ∇F, H·v (two Walsh–Hadamard transforms per region) and diag H;
 //! * [`newton`]: truncated Newton with preconditioned conjugate gradients;
-//! * [`search`]: Tc from the lowest odd-sector eigenvalue (LOBPCG), stepped down and
-//!   refined with Brent's method;
+//! * [`search`]: the probe of Tc, the lowest odd-sector eigenvalue (LOBPCG), for the
+//!   one step-down and Brent search of [`crate::search`];
 //! * [`thermo`]: m, U, F, S, C, χ of point-group-symmetric phases, C and χ from CG
 //!   solves;
 //! * [`orbit_dense`]: the earlier dense orbit-reduced path, kept for comparison.
@@ -25,10 +25,11 @@ use std::time::Instant;
 use rungs_lattice::{CompactLevel, Lattice, Level};
 
 use crate::error::SolveError;
+use crate::search::{refine, step_down, Bracket, StepRules};
 use crate::tc::{classify, mean_field_scale, CriticalPoint, TcOptions};
 
 pub use orbit_dense::{critical_temperature_orbits_dense, SymmetricSolver, MAX_REDUCED_VARIABLES};
-pub use search::{find_tc, ProbeValue, Search, SymmetricProbe};
+pub use search::{ProbeValue, SymmetricProbe};
 pub use thermo::{observables_symmetric, SymmetricEngine, SymmetricState};
 
 /// The note of every result of this path.
@@ -110,28 +111,28 @@ pub fn critical_temperature_compact(
         .filter(|t| t.is_finite() && *t > 0.0)
         .unwrap_or_else(|| own_start(lattice, level.max_cluster_sites, scale));
     let mut probe = SymmetricProbe::new(level);
-    let search = find_tc(
-        &mut probe,
-        start,
-        scale * options.lowest_fraction,
-        options.relative_tolerance,
-    )?;
+    let t_min = scale * options.lowest_fraction;
+    let bracket = step_down(&mut probe, start, t_min, StepRules::creeping())?;
     let nb = level.sites_per_cell;
-    let Some(tc) = search.tc else {
-        return Ok(CriticalPoint {
-            level: level.name.clone(),
-            max_cluster_sites: level.max_cluster_sites,
-            field: options.field,
-            tc: None,
-            searched_down_to: search.searched_down_to,
-            mode: vec![0.0; nb],
-            kind: crate::tc::ModeKind::Hidden,
-            ordering: None,
-            amplitude: None,
-            notes: vec![SYMMETRIC_ONLY.to_string()],
-            seconds: clock.elapsed().as_secs_f64(),
-        });
+    let (lo, hi) = match bracket {
+        Bracket::Found { lo, hi } => (lo, hi),
+        Bracket::Stable { down_to } | Bracket::Noise { at: down_to } => {
+            return Ok(CriticalPoint {
+                level: level.name.clone(),
+                max_cluster_sites: level.max_cluster_sites,
+                field: options.field,
+                tc: None,
+                searched_down_to: down_to,
+                mode: vec![0.0; nb],
+                kind: crate::tc::ModeKind::Hidden,
+                ordering: None,
+                amplitude: None,
+                notes: vec![SYMMETRIC_ONLY.to_string()],
+                seconds: clock.elapsed().as_secs_f64(),
+            });
+        }
     };
+    let tc = refine(&mut probe, lo, hi, options.relative_tolerance)?;
     // The mode at Tc and λ'(Tc) from its Rayleigh quotient at Tc ± δ.
     probe.probe(tc)?;
     let u = probe.mode().map(<[f64]>::to_vec).unwrap_or_default();
@@ -165,7 +166,7 @@ pub fn critical_temperature_compact(
         max_cluster_sites: level.max_cluster_sites,
         field: options.field,
         tc: Some(tc),
-        searched_down_to: search.searched_down_to,
+        searched_down_to: lo,
         mode,
         kind,
         ordering: Some(crate::ordering::Ordering::new(

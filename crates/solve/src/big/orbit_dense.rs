@@ -19,8 +19,6 @@
 
 use std::time::Instant;
 
-use argmin::core::{CostFunction, Executor};
-use argmin::solver::brent::BrentRoot;
 use faer::linalg::solvers::Solve;
 use faer::{Mat, Side};
 use rungs_lattice::symmetry::{self, SiteMap};
@@ -29,6 +27,7 @@ use rungs_lattice::{Cluster, Lattice, Level};
 use crate::equilibrium::{minimise_with, product_state, HessianSolver, NewtonOptions};
 use crate::error::SolveError;
 use crate::functional::{Block, Functional};
+use crate::search::{refine, step_down, Bracket, StepRules};
 use crate::tc::{CriticalPoint, ModeKind, TcOptions};
 use crate::wht::wht;
 
@@ -234,7 +233,6 @@ struct BigProbe<'a> {
     b: Vec<f64>,
     solver: std::cell::RefCell<SymmetricSolver>,
     warm: std::cell::RefCell<Vec<f64>>,
-    error: std::cell::RefCell<Option<SolveError>>,
     /// g(T) already computed (the root finder asks for its bracket ends again).
     cache: std::cell::RefCell<Vec<(f64, f64, bool)>>,
 }
@@ -293,20 +291,18 @@ impl BigProbe<'_> {
     }
 }
 
-struct GRoot<'p, 'a>(&'p BigProbe<'a>);
-
-impl CostFunction for GRoot<'_, '_> {
-    type Param = f64;
-    type Output = f64;
-    fn cost(&self, t: &f64) -> Result<f64, argmin::core::Error> {
-        match self.0.g(*t) {
-            Ok((g, _)) => Ok(g),
-            Err(e) => {
-                let msg = e.to_string();
-                *self.0.error.borrow_mut() = Some(e);
-                Err(argmin::core::Error::msg(msg))
-            }
-        }
+/// The search's view of g: the root is where g changes sign; where H_odd is not
+/// positive definite although `g > 0` (a mode orthogonal to the field went soft first)
+/// the paramagnet is unstable all the same.
+impl crate::search::Probe for BigProbe<'_> {
+    fn value(&mut self, t: f64) -> Result<f64, SolveError> {
+        Ok(self.g(t)?.0)
+    }
+    fn unstable(&self, t: f64) -> bool {
+        self.cache.borrow().iter().any(|c| c.0 == t && !c.2)
+    }
+    fn name(&self) -> &str {
+        &self.f.level().name
     }
 }
 
@@ -338,90 +334,48 @@ pub fn critical_temperature_orbits_dense(
     for &v in &red.site_vars {
         b[odd.pos[v]] += 1.0;
     }
-    let probe = BigProbe {
+    let mut probe = BigProbe {
         f: Functional::new(&red, 1.0, 0.0),
         even,
         odd,
         b,
         solver: std::cell::RefCell::new(SymmetricSolver::new(&red, &ops)),
         warm: std::cell::RefCell::new(Vec::new()),
-        error: std::cell::RefCell::new(None),
         cache: std::cell::RefCell::new(Vec::new()),
     };
     *probe.warm.borrow_mut() = product_state(&probe.f, 0.0);
     let scale = crate::tc::mean_field_scale(lattice).max(1e-12);
-    let mut t_hi = start_below.unwrap_or(scale * 1.02);
-    let (mut g_hi, mut pd) = probe.g(t_hi)?;
-    let mut grow = 0;
-    while !pd && grow < 30 {
-        t_hi *= 1.05;
-        (g_hi, pd) = probe.g(t_hi)?;
-        grow += 1;
-    }
-    if !pd {
-        return Err(SolveError::TcSearch {
-            level: level.name.clone(),
-            detail: format!("no stable paramagnet up to T = {t_hi}"),
-        });
-    }
-    // Step down along the secant of g until H_odd stops being positive definite.
+    let t_start = start_below.unwrap_or(scale * 1.02);
     let t_min = scale * options.lowest_fraction;
-    let mut prev: Option<(f64, f64)> = None;
-    let mut t_lo = None;
-    let mut t = t_hi;
-    while t > t_min {
-        let mut next = t * 0.97;
-        if let Some((tp, gp)) = prev {
-            let slope = (gp - g_hi) / (tp - t);
-            if slope > 0.0 {
-                next = (t - g_hi / slope - 2e-3 * t).clamp(0.7 * t, 0.999 * t);
-            }
-        }
-        let (g, pd) = probe.g(next)?;
-        if !pd || g <= 0.0 {
-            t_lo = Some(next);
-            break;
-        }
-        prev = Some((t, g_hi));
-        t = next;
-        t_hi = next;
-        g_hi = g;
-    }
+    // Each probe is a dense factorisation: creep down as the matrix-free path does,
+    // with a bolder first step.
+    let rules = StepRules {
+        first_ratio: 0.97,
+        margin: 2e-3,
+        ..StepRules::creeping()
+    };
+    let bracket = step_down(&mut probe, t_start, t_min, rules)?;
     let nb = level.sites_per_cell;
-    let Some(t_lo) = t_lo else {
-        return Ok(CriticalPoint {
-            level: level.name.clone(),
-            max_cluster_sites: level.max_cluster_sites(),
-            field: 0.0,
-            tc: None,
-            searched_down_to: t,
-            mode: vec![0.0; nb],
-            kind: ModeKind::Hidden,
-            ordering: None,
-            amplitude: None,
-            notes: Vec::new(),
-            seconds: start.elapsed().as_secs_f64(),
-        });
+    let (t_lo, t_hi) = match bracket {
+        Bracket::Found { lo, hi } => (lo, hi),
+        Bracket::Stable { down_to } | Bracket::Noise { at: down_to } => {
+            return Ok(CriticalPoint {
+                level: level.name.clone(),
+                max_cluster_sites: level.max_cluster_sites(),
+                field: 0.0,
+                tc: None,
+                searched_down_to: down_to,
+                mode: vec![0.0; nb],
+                kind: ModeKind::Hidden,
+                ordering: None,
+                amplitude: None,
+                notes: Vec::new(),
+                seconds: start.elapsed().as_secs_f64(),
+            });
+        }
     };
     // Brent on g over the bracket (its ends come from the cache).
-    let solver = BrentRoot::new(t_lo, t_hi, options.relative_tolerance * t_hi);
-    let tc = match Executor::new(GRoot(&probe), solver)
-        .configure(|s| s.max_iters(100))
-        .run()
-    {
-        Ok(r) => r.state.best_param.unwrap_or(0.5 * (t_lo + t_hi)),
-        Err(e) => {
-            let name = level.name.clone();
-            return Err(probe
-                .error
-                .borrow_mut()
-                .take()
-                .unwrap_or(SolveError::TcSearch {
-                    level: name,
-                    detail: e.to_string(),
-                }));
-        }
-    };
+    let tc = refine(&mut probe, t_lo, t_hi, options.relative_tolerance)?;
     // Amplitude: χ = bᵀH⁻¹b / N_b = 1/(N_b g), g ≈ g'(T − Tc) ⇒ χ̄ = 1/(N_b g'(Tc)).
     // Wide enough that the rounding floor of g (big clusters) is negligible, narrow
     // enough that its curvature is: g is linear to O(dt/Tc) = 10⁻³ here.

@@ -6,17 +6,14 @@
 //! started from the last mode, with B the diagonal of H_odd at the first temperature
 //! probed (fixed, so λ(T) is one smooth function). λ changes sign at Tc, where the
 //! paramagnet stops being a minimum against the symmetric (uniform) order; λ > 0 is the
-//! positive definiteness of H_odd. The **search** steps down from a temperature above
-//! Tc along the secant of λ(T) until λ < 0, then refines with Brent's method.
+//! positive definiteness of H_odd. The **search** is the one of every Tc,
+//! [`crate::search`] (with [`crate::search::StepRules::creeping`]): step down from a
+//! temperature above Tc along the secant of λ(T) until λ < 0, then Brent's method.
 //!
 //! The critical amplitude: with u B-normalised, `H⁻¹ ≈ u uᵀ / λ` near Tc, so
 //! `χ = bᵀH⁻¹b / N_b ≈ (bᵀu)² / (N_b λ'(Tc) (T − Tc))` (b: the field on the orbits);
 //! λ' from the Rayleigh quotient `uᵀH(T)u` at Tc ± 10⁻⁴ Tc.
 
-use std::cell::RefCell;
-
-use argmin::core::{CostFunction, Executor};
-use argmin::solver::brent::BrentRoot;
 use rungs_lattice::CompactLevel;
 
 use crate::error::SolveError;
@@ -211,111 +208,11 @@ impl<'a> SymmetricProbe<'a> {
     }
 }
 
-/// The outcome of [`find_tc`].
-#[derive(Debug, Clone, Copy)]
-pub struct Search {
-    /// The root, if λ changed sign above `t_min`.
-    pub tc: Option<f64>,
-    /// Lowest temperature probed.
-    pub searched_down_to: f64,
-}
-
-struct Root<'p, 'a> {
-    probe: &'p RefCell<&'p mut SymmetricProbe<'a>>,
-    error: &'p RefCell<Option<SolveError>>,
-}
-
-impl CostFunction for Root<'_, '_> {
-    type Param = f64;
-    type Output = f64;
-    fn cost(&self, t: &f64) -> Result<f64, argmin::core::Error> {
-        match self.probe.borrow_mut().probe(*t) {
-            Ok(v) => Ok(v.value),
-            Err(e) => {
-                let msg = e.to_string();
-                *self.error.borrow_mut() = Some(e);
-                Err(argmin::core::Error::msg(msg))
-            }
-        }
+impl crate::search::Probe for SymmetricProbe<'_> {
+    fn value(&mut self, t: f64) -> Result<f64, SolveError> {
+        Ok(self.probe(t)?.value)
     }
-}
-
-/// Step down from `start` (raised by 5 % steps until the paramagnet is stable there)
-/// along the secant of the probe's value until it turns negative, then Brent's root to
-/// a relative `rel_tol`. Gives up (no Tc) below `t_min`.
-pub fn find_tc(
-    probe: &mut SymmetricProbe,
-    start: f64,
-    t_min: f64,
-    rel_tol: f64,
-) -> Result<Search, SolveError> {
-    let name = probe.model.level().name.clone();
-    let mut t_hi = start;
-    let mut v_hi = probe.probe(t_hi)?;
-    let mut grow = 0;
-    while !v_hi.positive_definite && grow < 30 {
-        t_hi *= 1.05;
-        v_hi = probe.probe(t_hi)?;
-        grow += 1;
-    }
-    if !v_hi.positive_definite {
-        return Err(SolveError::TcSearch {
-            level: name,
-            detail: format!("no stable paramagnet up to T = {t_hi}"),
-        });
-    }
-    let mut prev: Option<(f64, f64)> = None;
-    let mut t_lo = None;
-    let mut t = t_hi;
-    while t > t_min {
-        let mut next = t * 0.99;
-        if let Some((tp, vp)) = prev {
-            let slope = (vp - v_hi.value) / (tp - t);
-            if slope > 0.0 {
-                // Aim a little below the predicted zero.
-                next = (t - v_hi.value / slope - 1e-3 * t).clamp(0.7 * t, 0.999 * t);
-            }
-        }
-        let next = next.max(t_min);
-        let v = probe.probe(next)?;
-        if !v.positive_definite {
-            t_lo = Some(next);
-            break;
-        }
-        prev = Some((t, v_hi.value));
-        t = next;
-        t_hi = next;
-        v_hi = v;
-        if next <= t_min {
-            break;
-        }
-    }
-    let Some(t_lo) = t_lo else {
-        return Ok(Search {
-            tc: None,
-            searched_down_to: t,
-        });
-    };
-    let error = RefCell::new(None);
-    let cell = RefCell::new(probe);
-    let solver = BrentRoot::new(t_lo, t_hi, rel_tol * t_hi);
-    let result = Executor::new(
-        Root {
-            probe: &cell,
-            error: &error,
-        },
-        solver,
-    )
-    .configure(|s| s.max_iters(100))
-    .run();
-    match result {
-        Ok(r) => Ok(Search {
-            tc: Some(r.state.best_param.unwrap_or(0.5 * (t_lo + t_hi))),
-            searched_down_to: t_lo,
-        }),
-        Err(e) => Err(error.into_inner().unwrap_or(SolveError::TcSearch {
-            level: name,
-            detail: e.to_string(),
-        })),
+    fn name(&self) -> &str {
+        &self.model.level().name
     }
 }
