@@ -4,7 +4,9 @@
 //! * [`equilibrium`]: damped, shifted Newton that keeps every cluster probability > 0;
 //! * [`state`]: paramagnetic / ordered / in-field equilibrium at (T, h);
 //! * [`tc`]: the critical temperature from the odd-sector stability of the paramagnet;
-//! * [`thermo`]: per-site observables (m, U, F, S, C, χ) from a solved state.
+//! * [`thermo`]: per-site observables (m, U, F, S, C, χ) from a solved state;
+//! * [`phases`]: phase diagrams — every phase's branch, first- and second-order
+//!   transitions, spinodals, tricritical points, the alloy view.
 //!
 //! Conventions: spins ±1, `H = −Σ J s_i s_j − h Σ s_i`, k_B = 1; the functional is per
 //! unit cell, every reported observable per site.
@@ -20,6 +22,7 @@ pub mod krylov;
 pub mod linalg;
 pub mod ordering;
 pub mod phase;
+pub mod phases;
 pub mod qspace;
 pub mod search;
 pub mod state;
