@@ -312,14 +312,46 @@ impl Lattice {
     /// site plus a parity per primitive direction (colour of (a, n) = c_a + Σ_k p_k n_k mod
     /// 2), so odd cycles that close only through the periodic structure are caught.
     pub fn is_bipartite(&self) -> bool {
+        self.two_colouring_exists(|_| true)
+    }
+
+    /// Whether the couplings are frustrated: no choice of spin signs (a gauge
+    /// s_i → ε_i s_i, ε_i = ±1, periodic up to a parity per primitive direction) makes
+    /// every bond ferromagnetic. Equivalently, some closed loop of bonds has
+    /// Π_bonds sign(J) = −1 (Toulouse 1977, Commun. Phys. 2, 115). An unfrustrated
+    /// lattice at h = 0 is the ferromagnet with couplings |J| in disguise: the same Tc,
+    /// free energy, entropy and specific heat, with order at the gauge's wavevector.
+    /// Bonds with J = 0 impose nothing.
+    ///
+    /// ```
+    /// // A square antiferromagnet is not frustrated; add an antiferromagnetic diagonal and it is.
+    /// let af = "name: af\ndimension: 2\nvectors: [[1, 0], [0, 1]]\nbasis: [{name: a, position: [0, 0]}]\n\
+    ///     couplings: {J: -1, K: -0.3}\nbonds: [{from: a, to: a, cell: [1, 0], coupling: J},\
+    ///     {from: a, to: a, cell: [0, 1], coupling: J}";
+    /// let plain = rungs_lattice::Lattice::from_yaml_str(&format!("{af}]\n"), "af.yaml").unwrap();
+    /// assert!(!plain.is_frustrated());
+    /// let diagonal = rungs_lattice::Lattice::from_yaml_str(
+    ///     &format!("{af}, {{from: a, to: a, cell: [1, 1], coupling: K}}]\n"),
+    ///     "diagonal.yaml",
+    /// ).unwrap();
+    /// assert!(diagonal.is_frustrated());
+    /// ```
+    pub fn is_frustrated(&self) -> bool {
+        !self.two_colouring_exists(|j| j < 0.0)
+    }
+
+    /// Whether colours c_a per basis site and parities p_k per primitive direction exist
+    /// with c_from + c_to + Σ_k p_k cell_k = opposite(J) (mod 2) for every bond with
+    /// J ≠ 0 (bonds with `opposite(J)` false join equal colours). Gaussian elimination
+    /// over GF(2).
+    fn two_colouring_exists(&self, opposite: impl Fn(f64) -> bool) -> bool {
         let d = self.dimension;
         let nb = self.basis.len();
-        // Unknowns: c_a (nb of them) and p_k (d). Each bond gives the GF(2) equation
-        // c_from + c_to + Σ_k p_k cell_k = 1. Solve by Gaussian elimination over GF(2).
         let nvar = nb + d;
         let mut rows: Vec<(Vec<u8>, u8)> = self
             .bonds
             .iter()
+            .filter(|b| b.j != 0.0)
             .map(|b| {
                 let mut r = vec![0u8; nvar];
                 r[b.from] ^= 1;
@@ -327,7 +359,7 @@ impl Lattice {
                 for k in 0..d {
                     r[nb + k] ^= (b.cell[k].rem_euclid(2)) as u8;
                 }
-                (r, 1u8)
+                (r, u8::from(opposite(b.j)))
             })
             .collect();
         let mut pivot_row = 0;

@@ -9,7 +9,7 @@
 //! every step only when the level's entropy coefficients meet a sufficient condition:
 //! Pretti 2005, J. Stat. Phys., doi:10.1007/s10955-005-4426-x).
 
-use nalgebra::{DMatrix, DVector};
+use nalgebra::DMatrix;
 
 use crate::error::SolveError;
 use crate::functional::{Block, Evaluation, Functional};
@@ -111,12 +111,7 @@ impl HessianSolver for DenseSolver {
                 m[(i, i)] += mu * d;
             }
         }
-        let chol = m.cholesky()?;
-        Some(
-            chol.solve(&DVector::from_column_slice(rhs))
-                .as_slice()
-                .to_vec(),
-        )
+        crate::linalg::solve_spd(&m, rhs)
     }
 }
 

@@ -23,7 +23,7 @@ pub enum SolveError {
         tolerance: f64,
     },
     /// The paramagnet is unstable but no ordered minimum below it was found.
-    #[error("level `{level}` at T = {t}, h = {h}: the paramagnetic solution is unstable and no ordered minimum with lower free energy was found; try a supercell (--supercell) if the order breaks the cell's translations")]
+    #[error("level `{level}` at T = {t}, h = {h}: no minimum of this level's free energy was found here: the disordered state is unstable and Newton found only saddles (the approximation may be ill-posed at this temperature, its minimum on the boundary of the probabilities)")]
     NoStableState {
         /// Level name.
         level: String,

@@ -36,7 +36,9 @@ pub mod wht;
 pub use error::SolveError;
 pub use state::{equilibrium as solve_equilibrium, Branch, State};
 pub use sweep::{sweep_level, LevelSweep, SweepOptions, SweepPoint};
-pub use tc::{critical_temperature, CriticalPoint, ModeKind, TcOptions};
+pub use tc::{
+    critical_temperature, critical_temperature_observed, CriticalPoint, ModeKind, TcOptions,
+};
 pub use thermo::{observables, Observables};
 
 /// A number for notes and messages: at most 6 significant digits, no trailing zeros.

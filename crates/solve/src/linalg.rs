@@ -57,6 +57,16 @@ pub fn min_eigenvalue_complex(m: &DMatrix<Complex<f64>>) -> f64 {
         .unwrap_or(f64::NAN)
 }
 
+/// Solve `M x = rhs` for a real symmetric positive definite M (blocked Cholesky);
+/// `None` when M is not positive definite.
+pub fn solve_spd(m: &DMatrix<f64>, rhs: &[f64]) -> Option<Vec<f64>> {
+    use faer::linalg::solvers::Solve;
+    let llt = to_faer(m).llt(Side::Lower).ok()?;
+    let mut b = Mat::from_fn(rhs.len(), 1, |i, _| rhs[i]);
+    llt.solve_in_place(b.as_mut());
+    Some((0..rhs.len()).map(|i| b[(i, 0)]).collect())
+}
+
 /// Whether a real symmetric matrix is positive definite (Cholesky succeeds).
 pub fn positive_definite_real(m: &DMatrix<f64>) -> bool {
     m.nrows() == 0 || to_faer(m).llt(Side::Lower).is_ok()

@@ -154,13 +154,22 @@ impl PhaseCell {
     }
 }
 
-/// Whether a maximal cluster of `level` contains some site with all its neighbours.
+/// Whether a maximal cluster of `level` holds some site together with more than half of
+/// its coupling weight Σ|J| (the centre of a 3×3 block, of a star, any site of a
+/// honeycomb hexagon): given its cluster neighbours flipped, that site's own flip is
+/// nearly forced at low temperature, and the cluster probabilities then cancel by the
+/// exponential of that energy.
 fn has_interior_site(lattice: &Lattice, level: &Level) -> bool {
     level.maximal.iter().any(|c| {
         c.sites().any(|(a, cell)| {
-            lattice.neighbours(a).iter().all(|&(b, off, _)| {
-                c.contains(b, [cell[0] + off[0], cell[1] + off[1], cell[2] + off[2]])
-            })
+            let (mut inside, mut total) = (0.0, 0.0);
+            for &(b, off, j) in &lattice.neighbours(a) {
+                total += j.abs();
+                if c.contains(b, [cell[0] + off[0], cell[1] + off[1], cell[2] + off[2]]) {
+                    inside += j.abs();
+                }
+            }
+            inside > 0.5 * total + 1e-12
         })
     })
 }
@@ -311,7 +320,11 @@ impl<'c> PhaseFollower<'c> {
             }
         };
         if dis.stable {
-            if cold && self.cell.ordering.is_some() {
+            // A first point: the ordered phase may coexist (first order) near and
+            // somewhat above the level's Tc (the disordered state's spinodal); well above
+            // it no ordered state survives and the search is not tried.
+            let near = self.tc_hint.is_some_and(|tc| t < 1.25 * tc);
+            if cold && near && self.cell.ordering.is_some() {
                 // A first point: the ordered phase may coexist (first order); the
                 // lower free energy is the equilibrium.
                 if let Some((signs, x, p)) = self.start_ordered(t, Some(&dis))? {
@@ -338,6 +351,20 @@ impl<'c> PhaseFollower<'c> {
         }
     }
 
+    /// The error of a level whose ordered branch, started near Tc, cannot be followed
+    /// down to t.
+    fn precision_limit_from(&self, tc: f64, t: f64) -> SolveError {
+        SolveError::PrecisionLimit {
+            level: self.cell.level.name.clone(),
+            t,
+            h: self.field,
+            detail: format!(
+                "the ordered state could not be followed from near Tc = {} down to this temperature: this level's clusters hold some sites together with most of their neighbours, whose flips are then nearly forced at low temperature, and its cluster probabilities span more decades than double precision resolves; levels without such sites (pair, plaquette, ...) reach any temperature; a path that cools step by step gets as far as the precision allows",
+                crate::report_num(tc)
+            ),
+        }
+    }
+
     /// The error of a level whose ordered branch cannot be followed below `tw`.
     fn precision_limit(&self, tw: f64, t: f64) -> SolveError {
         SolveError::PrecisionLimit {
@@ -345,7 +372,7 @@ impl<'c> PhaseFollower<'c> {
             t,
             h: self.field,
             detail: format!(
-                "the ordered state could not be followed below T = {}: this level's clusters contain sites together with all their neighbours, whose flips are nearly forced at low temperature, and its cluster probabilities then span more decades than double precision resolves; levels without such sites (pair, plaquette, ...) reach any temperature",
+                "the ordered state could not be followed below T = {}: this level's clusters hold some sites together with most of their neighbours, whose flips are then nearly forced at low temperature, and its cluster probabilities span more decades than double precision resolves; levels without such sites (pair, plaquette, ...) reach any temperature",
                 crate::report_num(tw)
             ),
         }
@@ -506,14 +533,22 @@ impl<'c> PhaseFollower<'c> {
         };
         let mut sol = minimise(&f, x0, &all, opts)?;
         for _ in 0..4 {
-            let Some(h) = f.hessian_block(&sol.x, &all.vars, &all.pos) else {
+            let h = if f.is_precise() {
+                f.hessian_block_precise(&sol.x, &all.vars, &all.pos)
+            } else {
+                f.hessian_block(&sol.x, &all.vars, &all.pos)
+            };
+            let Some(h) = h else {
                 break;
             };
+            // A minimum: the Hessian Newton factorised is positive definite.
+            if crate::linalg::positive_definite_real(&h) {
+                return Ok(sol.x);
+            }
             let Some((lam, v)) = crate::linalg::lowest_real(&h) else {
                 break;
             };
-            let scale = h.diagonal().amax().max(1e-300);
-            if lam > -1e-10 * scale {
+            if lam >= 0.0 {
                 return Ok(sol.x);
             }
             // Step along the negative curvature, as far as stays feasible and lowers F.
@@ -537,7 +572,11 @@ impl<'c> PhaseFollower<'c> {
             let Some(x) = moved else { break };
             sol = minimise(&f, x, &all, opts)?;
         }
-        Ok(sol.x)
+        Err(SolveError::NoStableState {
+            level: self.cell.level.name.clone(),
+            t,
+            h: self.field,
+        })
     }
 
     /// One continuation step of the ordered branch from `tw` to `t`. Flip probabilities
@@ -704,10 +743,16 @@ impl<'c> PhaseFollower<'c> {
                 // Cold start far below Tc: start near Tc and cool down to t.
                 let t0 = 0.8 * tc;
                 if let Some((s0, x0, _)) = self.start_ordered(t0, None)? {
-                    if let Ok((s, x)) = self.continue_ordered(t0, &s0, &x0, t) {
-                        if let Some(p) = self.ordered_point(t, &s, &x)? {
-                            best = Some((s, x, p));
+                    match self.continue_ordered(t0, &s0, &x0, t) {
+                        Ok((s, x)) => {
+                            if let Some(p) = self.ordered_point(t, &s, &x)? {
+                                best = Some((s, x, p));
+                            }
                         }
+                        Err(_) if self.cell.interior_sites => {
+                            return Err(self.precision_limit_from(tc, t));
+                        }
+                        Err(_) => {}
                     }
                 }
             }

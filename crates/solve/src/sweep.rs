@@ -72,9 +72,11 @@ pub fn sweep_level(
     options: SweepOptions,
     tick: &(dyn Fn() + Sync),
 ) -> Result<LevelSweep, SolveError> {
-    check_size(level)?;
     if let Some(&t) = temps.iter().find(|t| !(t.is_finite() && **t > 0.0)) {
         return Err(SolveError::BadTemperature { t });
+    }
+    if check_size(level).is_err() {
+        return sweep_big(lattice, level, temps, fields, options, tick);
     }
     let d = lattice.dimension();
     let mut notes = Vec::new();
@@ -131,5 +133,84 @@ pub fn sweep_level(
         tc,
         points,
         notes,
+    })
+}
+
+/// A level too large for the dense engine, swept matrix-free on point-group orbits
+/// ([`crate::big::SymmetricEngine`]): point-group-symmetric phases only (the paramagnet,
+/// uniform order, a uniform field), on the primitive cell. Refused when the lattice's
+/// order is not uniform (its mean-field ordering wavevector is not 0), since the ordered
+/// phase could not be formed.
+fn sweep_big(
+    lattice: &Lattice,
+    level: &Level,
+    temps: &[f64],
+    fields: &[f64],
+    options: SweepOptions,
+    tick: &(dyn Fn() + Sync),
+) -> Result<LevelSweep, SolveError> {
+    let d = lattice.dimension();
+    let refuse = |why: String| SolveError::TcSearch {
+        level: level.name.clone(),
+        detail: why,
+    };
+    if options.supercell.is_some_and(|n| n != [1, 1, 1]) {
+        return Err(refuse(
+            "levels too large for the dense engine are swept on the primitive cell only (no --supercell)".into(),
+        ));
+    }
+    if let Some((q, _)) = crate::tc::mean_field_maxima(lattice).first() {
+        if q.iter().any(|c| *c != 0.0) {
+            return Err(refuse(format!(
+                "levels too large for the dense engine follow point-group-symmetric phases only, and this lattice orders at q = ({}): sweep a smaller level",
+                crate::tc::fmt_vec(q, d)
+            )));
+        }
+    }
+    let compact = crate::big::compact_level(lattice, &level.name)?;
+    let mut engine = crate::big::SymmetricEngine::new(&compact);
+    let note = crate::big::SYMMETRIC_ONLY.to_string();
+    let mut points = Vec::with_capacity(temps.len() * fields.len());
+    for &h in fields {
+        let mut warm: Option<crate::big::SymmetricState> = None;
+        for &t in temps {
+            points.push(match engine.observables(t, h, warm.as_ref()) {
+                Ok((observables, state)) => {
+                    let branch = match state.branch {
+                        crate::state::Branch::Ordered => crate::phase::Branch::Ordered,
+                        _ => crate::phase::Branch::Disordered,
+                    };
+                    let order_parameter = if branch == crate::phase::Branch::Ordered || h != 0.0 {
+                        observables.magnetization.abs()
+                    } else {
+                        0.0
+                    };
+                    warm = Some(state);
+                    SweepPoint::Solved(Box::new(PhasePoint {
+                        branch,
+                        observables,
+                        order_parameter,
+                        notes: Vec::new(),
+                    }))
+                }
+                Err(e) => SweepPoint::Omitted {
+                    temperature: t,
+                    field: h,
+                    reason: e.to_string(),
+                },
+            });
+            tick();
+        }
+    }
+    Ok(LevelSweep {
+        level: level.name.clone(),
+        max_cluster_sites: level.max_cluster_sites(),
+        cell: [1, 1, 1],
+        cell_sites: lattice.sites_per_cell(),
+        ordering: None,
+        pattern: vec![1.0; lattice.sites_per_cell()],
+        tc: None,
+        points,
+        notes: vec![note],
     })
 }

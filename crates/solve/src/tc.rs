@@ -307,6 +307,9 @@ struct QProbe<'a, 'l> {
     name: String,
     /// The last temperature probed, its noise scale and the candidate that was lowest.
     last: RefCell<(f64, f64, usize)>,
+    /// Where the search is (for the observer).
+    phase: RefCell<&'static str>,
+    observe: &'l (dyn Fn(&str) + Sync),
 }
 
 impl QProbe<'_, '_> {
@@ -338,6 +341,11 @@ impl QProbe<'_, '_> {
 
 impl Probe for QProbe<'_, '_> {
     fn value(&self, t: f64) -> Result<f64, SolveError> {
+        (self.observe)(&format!(
+            "{}: T = {}",
+            self.phase.borrow(),
+            crate::report_num(t)
+        ));
         let (v, arg, noise) = self.evaluate(t)?;
         *self.last.borrow_mut() = (t, noise, arg);
         Ok(v)
@@ -371,12 +379,40 @@ fn infeasible(level: &str, t: f64) -> SolveError {
 
 /// Find the critical temperature of `level` (built from `lattice`) in the field
 /// `options.field`, and the order that sets in.
+///
+/// ```
+/// use rungs_lattice::{Lattice, Level};
+/// use rungs_solve::{critical_temperature, TcOptions};
+/// // The square antiferromagnet: no supercell is needed for its Néel order.
+/// let text = "name: af\ndimension: 2\nvectors: [[1.0, 0.0], [0.0, 1.0]]\n\
+///             basis: [{name: a}]\ncouplings: {J: -1.0}\nbonds:\n\
+///             - {from: a, to: a, cell: [1, 0], coupling: J}\n\
+///             - {from: a, to: a, cell: [0, 1], coupling: J}\n";
+/// let lattice = Lattice::from_yaml_str(text, "af.yaml").unwrap();
+/// let pair = Level::build(&lattice, "pair").unwrap();
+/// let cp = critical_temperature(&lattice, &pair, TcOptions::default()).unwrap();
+/// // Bethe (1935): Tc = 2|J| / ln(z/(z − 2)) = 2/ln 2, at q = (1/2, 1/2).
+/// assert!((cp.tc.unwrap() - 2.0 / 2f64.ln()).abs() < 1e-7);
+/// assert_eq!(cp.ordering.unwrap().wavevector, [0.5, 0.5, 0.0]);
+/// ```
 pub fn critical_temperature(
     lattice: &Lattice,
     level: &Level,
     options: TcOptions,
 ) -> Result<CriticalPoint, SolveError> {
+    critical_temperature_observed(lattice, level, options, &|_| {})
+}
+
+/// [`critical_temperature`], telling `observe` where the search is (a short stage
+/// description: stepping down, root, wavevector check) for progress displays.
+pub fn critical_temperature_observed(
+    lattice: &Lattice,
+    level: &Level,
+    options: TcOptions,
+    observe: &(dyn Fn(&str) + Sync),
+) -> Result<CriticalPoint, SolveError> {
     if crate::functional::check_size(level).is_err() {
+        observe("big level: search on point-group orbits");
         return big_level(lattice, level, options);
     }
     let start = Instant::now();
@@ -403,6 +439,8 @@ pub fn critical_temperature(
         candidates: RefCell::new(candidates),
         name: level.name.clone(),
         last: RefCell::new((f64::NAN, 0.0, 0)),
+        phase: RefCell::new("stepping down"),
+        observe,
     };
     let t_min = scale * options.lowest_fraction;
     let rules = StepRules::default();
@@ -410,6 +448,7 @@ pub fn critical_temperature(
     let mut t_start = options.start_below.unwrap_or(scale * 1.02);
     let mut notes = Vec::new();
     for _round in 0..4 {
+        *probe.phase.borrow_mut() = "stepping down";
         let bracket = step_down(&probe, t_start, t_min, rules)?;
         let (lo, hi) = match bracket {
             Bracket::Found { lo, hi } => (lo, hi),
@@ -423,7 +462,12 @@ pub fn critical_temperature(
                 ));
             }
         };
+        *probe.phase.borrow_mut() = "root";
         let tc = refine(&probe, lo, hi, options.relative_tolerance)?;
+        observe(&format!(
+            "checking every wavevector near Tc = {}",
+            crate::report_num(tc)
+        ));
         // Refine the wavevector at Tc; check every grid wavevector just above Tc.
         let (f, x) = follower.solve(tc)?;
         let qh = QHessian::scaled(&f, lattice, &x, follower.sector(), false)
@@ -486,6 +530,7 @@ pub fn critical_temperature(
             }
         }
         if new_q.is_empty() {
+            observe("ordering pattern and critical amplitude");
             let chosen = &probe.candidates.borrow()[arg];
             let cp = finish(lattice, level, &follower, tc, chosen, &mut notes, start)?;
             return Ok(cp);
@@ -710,10 +755,12 @@ fn finish(
     let amplitude = (slope > 0.0 && norm > 0.0).then(|| proj.norm_sqr() / (norm * slope));
     // Degeneracy: the instability as low over the whole zone, or along a line through q.
     let mut ordering = ordering;
-    let zone_flat = d > 0
-        && zone_grid(d, 4)
-            .iter()
-            .all(|p| (qh.lowest_value(p) - mode.value).abs() < 1e-7);
+    // |λ(p) − λ*| < tol, by two Cholesky factorisations (cheaper than an eigensolve).
+    let level_with = |p: &Wavevector| {
+        qh.is_positive_definite_above(p, mode.value - 1e-7)
+            && !qh.is_positive_definite_above(p, mode.value + 1e-7)
+    };
+    let zone_flat = d > 0 && zone_grid(d, 4).iter().all(level_with);
     if zone_flat {
         notes.push(
             "the instability is degenerate over the whole zone (a flat band: every wavevector goes soft at this Tc, as for strongly frustrated couplings); the wavevector and pattern reported are one choice among many, and the ordered phase, if any, is not determined by this level".to_string(),
@@ -725,7 +772,7 @@ fn finish(
             for k in 0..d {
                 p[k] += s * dir[k];
             }
-            (qh.lowest_value(&p) - mode.value).abs() < 1e-7
+            level_with(&p)
         });
         if flat {
             ordering.flat_direction = Some(dir);

@@ -91,6 +91,7 @@ pub struct InspectReport {
     /// (basis site name, coordination number z), in basis order.
     coordination: Vec<(String, usize)>,
     bipartite: bool,
+    frustrated: bool,
     reference: Option<(f64, String)>,
     /// (coupling, J, bonds per cell), see [`Lattice::bonds_per_coupling`].
     bonds_per_coupling: Vec<(String, f64, usize)>,
@@ -119,6 +120,7 @@ impl InspectReport {
                 .zip(lattice.coordination())
                 .collect(),
             bipartite: lattice.is_bipartite(),
+            frustrated: lattice.is_frustrated(),
             reference: lattice.reference().map(|r| (r.tc, r.source.clone())),
             bonds_per_coupling: lattice.bonds_per_coupling(),
             neighbours: (0..lattice.sites_per_cell())

@@ -25,7 +25,7 @@ use rayon::prelude::*;
 use rungs_lattice::{CompactLevel, Lattice, LatticeError, Level, MAX_MATERIALISED_SITES};
 use rungs_reference::closed::ClosedForm;
 use rungs_solve::functional::check_size;
-use rungs_solve::{critical_temperature, CriticalPoint, SolveError, TcOptions};
+use rungs_solve::{critical_temperature_observed, CriticalPoint, SolveError, TcOptions};
 
 use crate::args::TcArgs;
 use crate::error::CliError;
@@ -38,7 +38,8 @@ pub use report::TcReport;
 /// Footer note: which levels are variational bounds.
 pub const NOT_BOUNDS_NOTE: &str =
     "bounds: `site` gives F_site ≥ F_exact for any couplings and field (Bogoliubov inequality) \
-     and, for ferromagnets (all J ≥ 0), Tc_site ≥ Tc_exact (Griffiths 1967, Commun. Math. Phys. \
+     and, for ferromagnets (all J ≥ 0, or unfrustrated couplings at h = 0, which a change of \
+     spin signs makes ferromagnetic), Tc_site ≥ Tc_exact (Griffiths 1967, Commun. Math. Phys. \
      6, 121); `pair` gives, for ferromagnets, F_pair ≥ F_exact in any field (Ruozzi 2012, NIPS \
      25, 117) and Tc_pair ≥ Tc_exact (correlations bounded by non-backtracking walks: Fisher \
      1967; Saade, Krzakala & Zdeborová 2016, arXiv:1609.08269). Larger clusters are \
@@ -95,7 +96,7 @@ pub fn run(args: &TcArgs, out: &mut Output) -> Result<(), CliError> {
                 return None;
             }
             line.stage("Tc search");
-            let row = search(&lattice, p, None, field);
+            let row = search(&lattice, p, None, field, &line.observer());
             line.finish();
             progress.inc(1);
             Some(row)
@@ -110,7 +111,13 @@ pub fn run(args: &TcArgs, out: &mut Output) -> Result<(), CliError> {
             .reduce(f64::min)
             .map(|t| 1.01 * t);
         lines[i].stage("Tc search on point-group orbits");
-        rows[i] = Some(search(&lattice, p, start_below, field));
+        rows[i] = Some(search(
+            &lattice,
+            p,
+            start_below,
+            field,
+            &lines[i].observer(),
+        ));
         lines[i].finish();
         progress.inc(1);
     }
@@ -251,7 +258,13 @@ pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, CliError> {
 /// of a big level starts (`TcOptions::start_below`). A level the engine refuses as too
 /// large is a [`TcOutcome::Refused`], one whose search fails a [`TcOutcome::Failed`]:
 /// the other levels still print.
-pub fn search(lattice: &Lattice, p: &Prepared, start_below: Option<f64>, field: f64) -> LevelTc {
+pub fn search(
+    lattice: &Lattice,
+    p: &Prepared,
+    start_below: Option<f64>,
+    field: f64,
+    observe: &(dyn Fn(&str) + Sync),
+) -> LevelTc {
     let start = Instant::now();
     let options = TcOptions {
         start_below,
@@ -266,11 +279,13 @@ pub fn search(lattice: &Lattice, p: &Prepared, start_below: Option<f64>, field: 
             }
         }
         (Err(reason), None) => TcOutcome::Refused(reason.clone()),
-        (Ok(level), None) => match critical_temperature(lattice, level, options) {
-            Ok(cp) => TcOutcome::Searched(Box::new(cp)),
-            Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
-            Err(e) => TcOutcome::Failed(e.to_string()),
-        },
+        (Ok(level), None) => {
+            match critical_temperature_observed(lattice, level, options, observe) {
+                Ok(cp) => TcOutcome::Searched(Box::new(cp)),
+                Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
+                Err(e) => TcOutcome::Failed(e.to_string()),
+            }
+        }
     };
     LevelTc {
         level: p.name.clone(),
@@ -309,8 +324,7 @@ pub fn reference_tc(lattice: &Lattice) -> Option<(f64, String)> {
 /// cell's translations is found without a supercell; frustrated lattices are flagged,
 /// where a cluster approximation may order although the exact model does not.
 pub fn order_note(lattice: &Lattice) -> String {
-    let antiferro = lattice.bonds().iter().any(|b| b.j < 0.0);
-    let frustrated = antiferro && !lattice.is_bipartite();
+    let frustrated = lattice.is_frustrated();
     let base = "each level's instability is sought at every wavevector q, so order that breaks the \
                 cell's translations (Néel order, superstructures) is found without a supercell; q is in \
                 units of the reciprocal primitive vectors, and `supercell` is the smallest diagonal cell \
@@ -318,7 +332,7 @@ pub fn order_note(lattice: &Lattice) -> String {
         .to_string();
     if frustrated {
         format!(
-            "IMPORTANT: antiferromagnetic couplings on a non-bipartite (frustrated) lattice. Cluster \
+            "IMPORTANT: frustrated couplings (no change of spin signs makes every bond ferromagnetic). Cluster \
              approximations may predict order where the exact model has none (the triangular and kagome \
              antiferromagnets have no transition at any T > 0: Wannier 1950, Phys. Rev. 79, 357; Kanô & \
              Naya 1953, Prog. Theor. Phys. 10, 158). {}",

@@ -371,3 +371,52 @@ fn non_utf8_and_missing_files_are_unreadable() {
     );
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// Frustration is a property of the signs of the couplings around closed loops (Toulouse
+/// 1977, Commun. Phys. 2, 115): the triangular antiferromagnet and the square lattice with
+/// antiferromagnetic nearest and next-nearest neighbours are frustrated; the triangular
+/// ferromagnet, the square antiferromagnet and a bcc antiferromagnet with ferromagnetic
+/// second neighbours (the B2-type ordering alloy) are not.
+#[test]
+fn frustration_follows_the_signs_around_loops() {
+    let tri = |j: f64| {
+        format!(
+            "name: tri\ndimension: 2\nvectors: [[1, 0], [0.5, 0.8660254037844386]]\n\
+             basis: [{{name: a}}]\ncouplings: {{J: {j}}}\nbonds:\n\
+             - {{from: a, to: a, cell: [1, 0], coupling: J}}\n\
+             - {{from: a, to: a, cell: [0, 1], coupling: J}}\n\
+             - {{from: a, to: a, cell: [1, -1], coupling: J}}\n"
+        )
+    };
+    assert!(!load(&tri(1.0)).unwrap().is_frustrated());
+    assert!(load(&tri(-1.0)).unwrap().is_frustrated());
+
+    let square = |j2: f64| {
+        format!(
+            "name: sq\ndimension: 2\nvectors: [[1, 0], [0, 1]]\nbasis: [{{name: a}}]\n\
+             couplings: {{J1: -1, J2: {j2}}}\nbonds:\n\
+             - {{from: a, to: a, cell: [1, 0], coupling: J1}}\n\
+             - {{from: a, to: a, cell: [0, 1], coupling: J1}}\n\
+             - {{from: a, to: a, cell: [1, 1], coupling: J2}}\n\
+             - {{from: a, to: a, cell: [1, -1], coupling: J2}}\n"
+        )
+    };
+    assert!(load(&square(-0.3)).unwrap().is_frustrated());
+    assert!(!load(&square(0.3)).unwrap().is_frustrated());
+    // J2 = 0 bonds impose nothing: the plain square antiferromagnet.
+    assert!(!load(&square(0.0)).unwrap().is_frustrated());
+
+    let bcc = "name: bcc\ndimension: 3\n\
+               vectors: [[-0.5, 0.5, 0.5], [0.5, -0.5, 0.5], [0.5, 0.5, -0.5]]\n\
+               basis: [{name: a}]\ncouplings: {J1: -1, J2: 0.2}\nbonds:\n\
+               - {from: a, to: a, cell: [1, 0, 0], coupling: J1}\n\
+               - {from: a, to: a, cell: [0, 1, 0], coupling: J1}\n\
+               - {from: a, to: a, cell: [0, 0, 1], coupling: J1}\n\
+               - {from: a, to: a, cell: [1, 1, 1], coupling: J1}\n\
+               - {from: a, to: a, cell: [1, 1, 0], coupling: J2}\n\
+               - {from: a, to: a, cell: [1, 0, 1], coupling: J2}\n\
+               - {from: a, to: a, cell: [0, 1, 1], coupling: J2}\n";
+    let l = load(bcc).unwrap();
+    assert!(!l.is_bipartite());
+    assert!(!l.is_frustrated());
+}

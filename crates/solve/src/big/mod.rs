@@ -29,7 +29,7 @@ use crate::tc::{classify, mean_field_scale, CriticalPoint, TcOptions};
 
 pub use orbit_dense::{critical_temperature_orbits_dense, SymmetricSolver, MAX_REDUCED_VARIABLES};
 pub use search::{find_tc, ProbeValue, Search, SymmetricProbe};
-pub use thermo::{observables_symmetric, SymmetricState};
+pub use thermo::{observables_symmetric, SymmetricEngine, SymmetricState};
 
 /// The note of every result of this path.
 pub const SYMMETRIC_ONLY: &str = "big level, solved matrix-free on point-group orbits: only point-group-symmetric (uniform) order is searched";

@@ -57,6 +57,7 @@ impl Report for InspectReport {
             "bonds_per_cell": self.bonds_per_cell,
             "coordination": coordination,
             "bipartite": self.bipartite,
+            "frustrated": self.frustrated,
             "reference": self.reference.as_ref().map(|(tc, source)| json!({"tc": tc, "source": source})),
             "bonds_per_coupling": couplings,
             "neighbours": neighbours,
@@ -114,6 +115,10 @@ impl Report for InspectReport {
             (
                 "bipartite".into(),
                 if self.bipartite { "yes" } else { "no" }.into(),
+            ),
+            (
+                "frustrated".into(),
+                if self.frustrated { "yes" } else { "no" }.into(),
             ),
             ("reference".into(), reference),
         ])];

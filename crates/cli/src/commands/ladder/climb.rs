@@ -10,7 +10,7 @@
 
 use rungs_lattice::{CompactLevel, Lattice, Level, MAX_MATERIALISED_SITES};
 use rungs_solve::extrapolate::{coherent_anomaly, inverse_size, Extrapolation, Rung};
-use rungs_solve::{critical_temperature, ModeKind, SolveError, TcOptions};
+use rungs_solve::{ModeKind, SolveError, TcOptions};
 
 use crate::error::CliError;
 use crate::output::num;
@@ -140,7 +140,9 @@ pub fn climb(
             ..TcOptions::default()
         };
         let result = match (&level, &compact) {
-            (Some(l), _) => critical_temperature(lattice, l, options),
+            (Some(l), _) => {
+                rungs_solve::critical_temperature_observed(lattice, l, options, &line.observer())
+            }
             (_, Some(c)) => rungs_solve::big::critical_temperature_compact(lattice, c, options),
             _ => continue,
         };

@@ -297,6 +297,8 @@ impl Report for TcReport {
                 .map_or_else(|| "none".into(), |(tc, _)| fixed(*tc, 6)),
         ));
         let mut notes = self.notes.clone();
+        // Levels ordering at the same wavevector share one note.
+        let mut orders: Vec<(String, Vec<&str>, String)> = Vec::new();
         for row in &self.levels {
             match &row.outcome {
                 TcOutcome::Refused(reason) => {
@@ -311,18 +313,36 @@ impl Report for TcReport {
                     }
                     if let Some(o) = cp.ordering.as_ref().filter(|_| cp.tc.is_some()) {
                         if !o.is_uniform_q() {
+                            let q = o.wavevector[..self.dimension]
+                                .iter()
+                                .map(|v| trim(*v))
+                                .collect::<Vec<_>>()
+                                .join(", ");
                             let n = o.supercell();
-                            notes.push(format!(
-                                "`{}` orders at q = ({}): the smallest cell that holds it is {} ({} sites).",
-                                row.level,
-                                o.wavevector[..self.dimension].iter().map(|v| trim(*v)).collect::<Vec<_>>().join(", "),
-                                n[..self.dimension].iter().map(usize::to_string).collect::<Vec<_>>().join("x"),
+                            let cell = format!(
+                                "{} ({} sites)",
+                                n[..self.dimension]
+                                    .iter()
+                                    .map(usize::to_string)
+                                    .collect::<Vec<_>>()
+                                    .join("x"),
                                 o.supercell_sites(self.sites_per_cell)
-                            ));
+                            );
+                            match orders.iter_mut().find(|(k, _, _)| *k == q) {
+                                Some((_, names, _)) => names.push(&row.level),
+                                None => orders.push((q, vec![&row.level], cell)),
+                            }
                         }
                     }
                 }
             }
+        }
+        for (q, names, cell) in orders {
+            notes.push(format!(
+                "`{}` order{} at q = ({q}): the smallest cell that holds it is {cell}; `rungs sweep` follows the ordered phase on it.",
+                names.join("`, `"),
+                if names.len() == 1 { "s" } else { "" }
+            ));
         }
         TextDoc {
             title: format!(
