@@ -110,8 +110,9 @@ pub(crate) fn build_phases(
             return Err(LatticeError::BadPhaseName {
                 at: ctx.at(&p.name.loc),
                 name: name.to_string(),
-                why: "is reserved (every report names the translation-invariant phase `disordered`)"
-                    .into(),
+                why:
+                    "is reserved (every report names the translation-invariant phase `disordered`)"
+                        .into(),
             });
         }
         if let Some(&line) = first.get(name) {
@@ -230,7 +231,11 @@ mod tests {
             (
                 "  columns: {supercell: [2, 1], signs: [+1, -1, +1]}\n",
                 10,
-                &["phases.columns.signs", "3 sign(s)", "2x1 supercell has 2 site(s)"],
+                &[
+                    "phases.columns.signs",
+                    "3 sign(s)",
+                    "2x1 supercell has 2 site(s)",
+                ],
             ),
             (
                 "  columns: {supercell: [2, 1], signs: [+1, 0.5]}\n",
@@ -240,7 +245,11 @@ mod tests {
             (
                 "  columns: {supercell: [2], signs: [+1, -1]}\n",
                 10,
-                &["phases.columns.supercell", "1 component(s)", "dimension is 2"],
+                &[
+                    "phases.columns.supercell",
+                    "1 component(s)",
+                    "dimension is 2",
+                ],
             ),
             (
                 "  columns: {supercell: [0, 1], signs: []}\n",
@@ -272,7 +281,10 @@ mod tests {
         .unwrap_err();
         assert!(e.to_string().contains("declared twice"), "{e}");
         let e = load("  a1: {supercell: [2, 1]}\n").unwrap_err();
-        assert!(e.to_string().contains("missing required key `signs`"), "{e}");
+        assert!(
+            e.to_string().contains("missing required key `signs`"),
+            "{e}"
+        );
         let e = load("  a1: {supercell: [2, 1], sign: [1, 1]}\n").unwrap_err();
         assert!(e.to_string().contains("did you mean `signs`"), "{e}");
     }
