@@ -18,12 +18,14 @@ use super::setup::{DiagramSpec, PhaseDiagramSetup};
 use super::{Along, Kind, PathResult, Spinodal, Transition};
 
 /// What a diagram is of: everything but its paths.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct DiagramHeader {
     /// The lattice's name.
     pub lattice: String,
     /// The level's name.
     pub level: String,
+    /// The lattice's dimension (the used components of wavevectors).
+    pub dimension: usize,
     /// The grid.
     pub spec: DiagramSpec,
     /// The phases compared, the disordered one first.
@@ -40,6 +42,7 @@ impl DiagramHeader {
         DiagramHeader {
             lattice: setup.lattice.name().to_string(),
             level: setup.level.name.clone(),
+            dimension: setup.lattice.dimension(),
             spec: setup.spec().clone(),
             phases: setup.phases().to_vec(),
             tc: setup.tc(),

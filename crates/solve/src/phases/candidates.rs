@@ -31,7 +31,7 @@ const MAX_STAR: usize = 6;
 const MAX_COMPARE_SITES: usize = 4096;
 
 /// Where a phase comes from.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Origin {
     /// The translation-invariant phase.
     Disordered,
@@ -55,7 +55,7 @@ impl Origin {
 /// A pattern of values on the sites of a diagonal supercell of `cell` primitive cells,
 /// numbered as `Lattice::supercell` numbers them (basis sites fastest, then cells along
 /// axis 0, 1, 2).
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Pattern {
     /// Cells along each axis (unused axes 1).
     pub cell: [usize; 3],
@@ -263,7 +263,7 @@ pub fn site_classes(pattern: &Pattern, ops: &[SiteMap], nb: usize) -> Vec<usize>
 }
 
 /// A phase as reports list it.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct PhaseInfo {
     /// Its name.
     pub name: String,

@@ -42,7 +42,7 @@ pub use candidates::{Origin, Pattern, PhaseInfo};
 pub use setup::{DiagramSpec, PhaseDiagramSetup};
 
 /// The variable a path runs along.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Along {
     /// Paths in temperature, one per field.
     Temperature,
@@ -61,7 +61,7 @@ impl Along {
 }
 
 /// The kind of a transition.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Kind {
     /// A crossing of two branches' free energies: jumps in S, m, ψ.
     First,
@@ -83,7 +83,7 @@ impl Kind {
 }
 
 /// One transition met along a path.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Transition {
     /// Temperature.
     pub temperature: f64,
@@ -122,7 +122,7 @@ impl Transition {
 }
 
 /// Which end of a branch, along the path.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Side {
     /// The branch exists above this point only.
     Lower,
@@ -141,7 +141,7 @@ impl Side {
 }
 
 /// The end of a branch that is not a transition: a limit of metastability (spinodal).
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Spinodal {
     /// Temperature.
     pub temperature: f64,
@@ -154,7 +154,7 @@ pub struct Spinodal {
 }
 
 /// The equilibrium at one grid point.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct GridPoint {
     /// Temperature.
     pub temperature: f64,
@@ -169,7 +169,7 @@ pub struct GridPoint {
 }
 
 /// Everything one path contributes to a diagram.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct PathResult {
     /// The path's index among the diagram's paths (ascending fixed value).
     pub index: usize,

@@ -38,6 +38,14 @@ pub const TOLERANCE: f64 = 1e-10;
 /// continuously.
 const CONTINUOUS: f64 = 1e-3;
 
+/// Whether two states meeting at a crossing of free energies are one state (their
+/// order parameters and magnetisations within [`CONTINUOUS`]): the crossing is then a
+/// branch merging continuously with another, found within rounding of a second-order
+/// point.
+fn continuous_meeting(a: &Sol, b: &Sol) -> bool {
+    (a.psi - b.psi).abs() < CONTINUOUS && (a.magnetization - b.magnetization).abs() < CONTINUOUS
+}
+
 /// A stretch of one phase's branch over consecutive grid points.
 struct Run {
     /// 0 for the disordered phase, k + 1 for ordered phase k.
@@ -120,13 +128,53 @@ pub fn run(setup: &PhaseDiagramSetup, index: usize) -> PathResult {
     let mut used: Vec<(usize, usize)> = Vec::new();
     let transitions = work.transitions(&runs, &eq, &mut used);
     let spinodals = work.spinodals(&runs, &used);
-    PathResult {
+    let mut result = PathResult {
         index,
         fixed,
         transitions,
         spinodals,
         grid,
         notes: work.notes,
+    };
+    drop_non_finite(&mut result);
+    result
+}
+
+/// Drops every transition, spinodal or grid value that is not a finite number (a
+/// branch evaluated where it does not exist), with a note: reports never print NaN.
+fn drop_non_finite(r: &mut PathResult) {
+    let before = (r.transitions.len(), r.spinodals.len());
+    r.transitions.retain(|t| {
+        [
+            t.temperature,
+            t.field,
+            t.latent_heat,
+            t.magnetization_below,
+            t.magnetization_above,
+            t.order_parameter_below,
+            t.order_parameter_above,
+        ]
+        .iter()
+        .all(|v| v.is_finite())
+    });
+    r.spinodals
+        .retain(|s| s.temperature.is_finite() && s.field.is_finite());
+    let mut blanked = 0;
+    for g in &mut r.grid {
+        let finite =
+            g.free_energy.is_none_or(f64::is_finite) && g.magnetization.is_none_or(f64::is_finite);
+        if !finite {
+            g.phase = None;
+            g.free_energy = None;
+            g.magnetization = None;
+            blanked += 1;
+        }
+    }
+    let dropped = before.0 - r.transitions.len() + before.1 - r.spinodals.len();
+    if dropped + blanked > 0 {
+        r.notes.push(format!(
+            "{dropped} transition(s) or branch end(s) and {blanked} grid point(s) gave a value that is not a finite number and are left out"
+        ));
     }
 }
 
@@ -594,11 +642,31 @@ impl<'s> PathWork<'s> {
                     let g = |x: f64| pair(x).map(|(p, q)| p.free_energy - q.free_energy);
                     if let Some(x) = root(&g, b_bot, a_top, g_lo, g_hi, self.tol(a_top)) {
                         if let Some((sa, sb)) = pair(x) {
+                            if continuous_meeting(&sa, &sb) {
+                                // The ordered branch merges with the other one at the
+                                // crossing: a continuous transition, not a jump.
+                                used.push((a, 1));
+                                used.push((b, 0));
+                                return self.second_order(runs, a, b, x_lo, x_hi, x);
+                            }
                             if !self.same(ra, &sa, rb, &sb) {
                                 return self.first_order(ra, &sa, rb, &sb, None);
                             }
                         }
                     }
+                } else if a_end.as_ref().is_some_and(|e| e.continuous)
+                    || b_end.as_ref().is_some_and(|e| e.continuous)
+                {
+                    // One branch vanishes continuously where the other begins, the
+                    // free energies equal within rounding there: second order.
+                    used.push((a, 1));
+                    used.push((b, 0));
+                    let at = match (&a_end, &b_end) {
+                        (Some(e), _) if e.continuous => e.x,
+                        (_, Some(e)) => e.x,
+                        _ => 0.5 * (a_top + b_bot),
+                    };
+                    return self.second_order(runs, a, b, x_lo, x_hi, at);
                 } else if g_lo < 0.0 {
                     // a stays lower until it ends.
                     if let Some(e) = &a_end {
@@ -762,7 +830,9 @@ impl<'s> PathWork<'s> {
                     continue;
                 }
                 let e = self.end(run, side);
-                if e.boundary {
+                // A branch whose order parameter vanishes merges with the disordered
+                // state there: a bifurcation, not a limit of metastability.
+                if e.boundary || e.continuous {
                     continue;
                 }
                 let (t, h) = self.setup.spec.point(self.fixed, e.x);

@@ -15,7 +15,7 @@ use crate::qspace::Wavevector;
 use crate::tc::{critical_temperature, mean_field_maxima, mean_field_scale, TcOptions};
 
 /// The grid of a diagram.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct DiagramSpec {
     /// Temperatures (ascending, distinct, > 0).
     pub temperatures: Vec<f64>,
