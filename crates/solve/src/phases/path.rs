@@ -561,7 +561,7 @@ impl<'s> PathWork<'s> {
             // A tie at grid point i between the branch shared with i − 1 and the one
             // shared with i + 1.
             if i > 0 {
-                if let Some(t) = self.tie_at(runs, eq, i) {
+                if let Some(t) = self.tie_at(runs, eq, i, used) {
                     out.push(t);
                 }
             }
@@ -578,7 +578,13 @@ impl<'s> PathWork<'s> {
 
     /// A first-order transition exactly at grid point i, if the branches shared with
     /// its neighbours are distinct states tying there.
-    fn tie_at(&self, runs: &[Run], eq: &[Vec<usize>], i: usize) -> Option<Transition> {
+    fn tie_at(
+        &self,
+        runs: &[Run],
+        eq: &[Vec<usize>],
+        i: usize,
+        used: &mut Vec<(usize, usize)>,
+    ) -> Option<Transition> {
         let below: Vec<usize> = eq[i]
             .iter()
             .copied()
@@ -596,6 +602,13 @@ impl<'s> PathWork<'s> {
         let (a, b) = (ra.at(i), rb.at(i));
         if self.same(ra, a, rb, b) {
             return None;
+        }
+        if continuous_meeting(a, b) {
+            // A second-order point on (within rounding of) the grid point.
+            used.push((below[0], 1));
+            used.push((above[0], 0));
+            let (lo, hi) = (self.xs[i - 1], self.xs[i + 1]);
+            return Some(self.second_order(runs, below[0], above[0], lo, hi, self.xs[i]));
         }
         Some(self.first_order(ra, a, rb, b, None))
     }
