@@ -170,6 +170,11 @@ fn fcc_antiferromagnet_tetrahedra_orders_first_order_above_the_spinodal() {
         .unwrap();
     let temps = range(1.5, 2.2, 8);
     let d = diagram(&l, "tetrahedra", &temps, &[0.0], Along::Temperature);
+    // The X-point star gives the CuAu-type layering and both Cu3Au-type patterns.
+    let names: Vec<&str> = d.header.phases.iter().map(|p| p.name.as_str()).collect();
+    for n in ["disordered", "AB", "A3B", "AB3"] {
+        assert!(names.contains(&n), "{names:?}");
+    }
     let firsts: Vec<_> = d.paths[0]
         .transitions
         .iter()
@@ -222,4 +227,28 @@ fn fcc_antiferromagnet_tetrahedra_orders_first_order_above_the_spinodal() {
         u.temperature,
         t.temperature
     );
+}
+
+#[test]
+fn declared_phase_is_compared_and_loses_to_neel_order() {
+    // A stripe pattern declared in the file is followed and compared; for the
+    // nearest-neighbour antiferromagnet its energy per bond is 0 against the Néel
+    // state's −|J|, so it never becomes the equilibrium (common practice).
+    let l = inline(
+        "name: sq\ndimension: 2\nvectors: [[1, 0], [0, 1]]\nbasis: [{name: a}]\n\
+         couplings: {J: -1.0}\n\
+         bonds: [{from: a, to: a, cell: [1, 0], coupling: J}, {from: a, to: a, cell: [0, 1], coupling: J}]\n\
+         phases:\n  columns: {supercell: [2, 1], signs: [+1, -1]}\n",
+    );
+    let d = diagram(&l, "site", &range(1.0, 5.0, 5), &[0.0], Along::Temperature);
+    let columns = d.header.phases.iter().find(|p| p.name == "columns").unwrap();
+    assert_eq!(columns.origin, rungs_solve::phases::Origin::Declared);
+    assert!(d.paths[0]
+        .grid
+        .iter()
+        .all(|g| g.phase.as_deref() != Some("columns")));
+    let t = &d.paths[0].transitions;
+    assert_eq!(t.len(), 1, "{t:?}");
+    // Weiss mean field: T_N = z|J| = 4 (common practice).
+    assert!((t[0].temperature - 4.0).abs() < 1e-8, "{t:?}");
 }
