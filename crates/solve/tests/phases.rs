@@ -241,7 +241,12 @@ fn declared_phase_is_compared_and_loses_to_neel_order() {
          phases:\n  columns: {supercell: [2, 1], signs: [+1, -1]}\n",
     );
     let d = diagram(&l, "site", &range(1.0, 5.0, 5), &[0.0], Along::Temperature);
-    let columns = d.header.phases.iter().find(|p| p.name == "columns").unwrap();
+    let columns = d
+        .header
+        .phases
+        .iter()
+        .find(|p| p.name == "columns")
+        .unwrap();
     assert_eq!(columns.origin, rungs_solve::phases::Origin::Declared);
     assert!(d.paths[0]
         .grid

@@ -176,9 +176,11 @@ fn jump(t: &Transition) -> f64 {
     }
 }
 
-/// Whether two transitions join the same two phases.
+/// Whether two transitions join the same two phases in the same order along the path
+/// (one line of transitions; the reverse order is another line, e.g. the two sides of a
+/// re-entrant phase).
 fn same_pair(a: &Transition, b: &Transition) -> bool {
-    (a.below == b.below && a.above == b.above) || (a.below == b.above && a.above == b.below)
+    a.below == b.below && a.above == b.above
 }
 
 /// The transition of `path` between the same phases as `t` and of kind `kind`, nearest

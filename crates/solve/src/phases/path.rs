@@ -663,7 +663,12 @@ impl<'s> PathWork<'s> {
                                 return self.second_order(runs, a, b, x_lo, x_hi, x);
                             }
                             if !self.same(ra, &sa, rb, &sb) {
-                                return self.first_order(ra, &sa, rb, &sb, None);
+                                let scale = la.free_energy.abs().max(1.0);
+                                let flat = g_lo.abs().max(g_hi.abs()) <= 1e-9 * scale;
+                                let note = flat.then(|| {
+                                    "the two branches' free energies agree within 10⁻⁹ (relative) across the whole bracket: where they cross is decided by rounding, so this transition's position and even its existence are not determined by this level".to_string()
+                                });
+                                return self.first_order(ra, &sa, rb, &sb, note);
                             }
                         }
                     }
@@ -768,10 +773,10 @@ impl<'s> PathWork<'s> {
         let (tt, hh) = self.setup.spec.point(self.fixed, x);
         t.temperature = tt;
         t.field = hh;
-        t.note = Some(
-            "a branch ends here (a limit of metastability) while its free energy is the lowest found: the jump is placed at its end"
-                .into(),
-        );
+        t.note = Some(format!(
+            "the {} branch ends here (a limit of metastability, or where it could no longer be solved) while its free energy is the lowest found: the jump is placed at its end and may be an artefact of a branch lost",
+            self.class(r_end, e)
+        ));
         t
     }
 
