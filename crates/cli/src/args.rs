@@ -41,6 +41,17 @@ pub enum Command {
     Sweep(SweepArgs),
     /// Convergence of Tc with cluster size, against references.
     Ladder(LadderArgs),
+    /// Phase diagram: every transition along each path (in T at each field, or in h at
+    /// each temperature with `--along field`), first or second order, with its jumps.
+    ///
+    /// Compares the disordered phase with the ordered phases built from the level's
+    /// ordering wavevector (and the file's `phases:`); first-order transitions are where
+    /// two branches' free energies cross, second-order ones where the disordered state
+    /// goes unstable under an ordered phase that vanishes continuously.
+    Phases(PhasesArgs),
+    /// Join the partial results of `rungs phases --shard k/n` runs into the output of
+    /// the unsharded run.
+    Merge(MergeArgs),
     /// Monte Carlo reference on finite tori of the lattice.
     ///
     /// Per site, each with its error bar: energy, |m|, the Binder cumulant U4,
@@ -62,7 +73,7 @@ pub struct CommonArgs {
     pub format: Format,
     /// Write the report to FILE (atomically: a temporary file in the same directory,
     /// renamed into place) instead of standard output.
-    #[arg(long, value_name = "FILE")]
+    #[arg(short = 'o', long, value_name = "FILE")]
     pub output: Option<PathBuf>,
 }
 
@@ -217,6 +228,95 @@ pub fn parse_order(text: &str) -> Result<OrderChoice, String> {
     Ok(OrderChoice::Wavevector(q))
 }
 
+/// The variable a path of `rungs phases` runs along.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum AlongArg {
+    /// Paths in temperature, one per field.
+    Temperature,
+    /// Paths in field, one per temperature (crosses a ferromagnet's h = 0 line).
+    Field,
+}
+
+/// `rungs phases LATTICE --levels L --temps ... --fields ... [--along temperature|field]
+/// [--alloy] [--plot FILE.svg] [--shard k/n]`.
+#[derive(Debug, Clone, Args)]
+pub struct PhasesArgs {
+    /// The lattice file, `--format` and `--output`.
+    #[command(flatten)]
+    pub common: CommonArgs,
+    /// Levels, comma-separated (one diagram each).
+    #[arg(long, required = true, value_delimiter = ',', value_name = "LEVELS")]
+    pub levels: Vec<String>,
+    /// Temperatures of the grid: one value, a comma list, or a range start:stop:step.
+    #[arg(long, value_parser = parse_temperatures, allow_hyphen_values = true, value_name = "LIST")]
+    pub temps: RealList,
+    /// Fields of the grid: one value, a comma list, or a range (default: the file's
+    /// `field`).
+    #[arg(long, value_parser = parse_reals, allow_hyphen_values = true, value_name = "LIST")]
+    pub fields: Option<RealList>,
+    /// The variable each path runs along.
+    #[arg(long, value_enum, default_value_t = AlongArg::Temperature)]
+    pub along: AlongArg,
+    /// Report in the language of a binary alloy: composition x = (1 − m)/2 of B and
+    /// chemical-potential difference Δμ = 2h.
+    #[arg(long)]
+    pub alloy: bool,
+    /// Also draw the diagram into FILE: SVG or PNG, by its extension.
+    #[arg(long, value_name = "FILE", value_parser = parse_plot_path, conflicts_with = "shard")]
+    pub plot: Option<PathBuf>,
+    /// Compute only the k-th of n interleaved parts of the paths (k from 1 to n) and
+    /// write a partial result (JSON) for `rungs merge`.
+    #[arg(long, value_parser = parse_shard, value_name = "k/n")]
+    pub shard: Option<Shard>,
+}
+
+/// `rungs merge PART... [--format ...] [--output FILE] [--plot FILE.svg]`.
+#[derive(Debug, Clone, Args)]
+pub struct MergeArgs {
+    /// The partial results written by `rungs phases --shard k/n`.
+    #[arg(value_name = "PART", required = true)]
+    pub parts: Vec<PathBuf>,
+    /// Output format: `table` for people; `csv` and `json` are stable, for scripts.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+    /// Write the report to FILE (atomically) instead of standard output.
+    #[arg(short = 'o', long, value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// Also draw the diagram into FILE: SVG or PNG, by its extension.
+    #[arg(long, value_name = "FILE", value_parser = parse_plot_path)]
+    pub plot: Option<PathBuf>,
+}
+
+/// One part of a sharded run: part `k` (1-based) of `n`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Shard {
+    /// Which part, 1 ..= n.
+    pub k: usize,
+    /// How many parts.
+    pub n: usize,
+}
+
+impl Shard {
+    /// Whether path `index` (0-based) belongs to this part: `index mod n = k − 1`.
+    pub fn holds(&self, index: usize) -> bool {
+        index % self.n == self.k - 1
+    }
+}
+
+/// Parse `k/n` with 1 ≤ k ≤ n.
+pub fn parse_shard(text: &str) -> Result<Shard, String> {
+    let bad = || {
+        format!("`{text}` is not a part k/n with 1 ≤ k ≤ n: write e.g. 1/3 (with Slurm: $SLURM_ARRAY_TASK_ID/3 and --array=1-3)")
+    };
+    let (k, n) = text.trim().split_once('/').ok_or_else(bad)?;
+    let k: usize = k.trim().parse().map_err(|_| bad())?;
+    let n: usize = n.trim().parse().map_err(|_| bad())?;
+    if k == 0 || n == 0 || k > n {
+        return Err(bad());
+    }
+    Ok(Shard { k, n })
+}
+
 /// Cell multiples of a supercell, unused dimensions 1 (`2x2` → `[2, 2, 1]`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub struct Supercell {
@@ -259,6 +359,19 @@ mod tests {
     #[test]
     fn clap_definition_is_consistent() {
         Cli::command().debug_assert();
+    }
+
+    #[test]
+    fn shards_interleave() {
+        let s = parse_shard("2/3").unwrap();
+        assert_eq!(s, Shard { k: 2, n: 3 });
+        assert_eq!(
+            (0..7).filter(|&i| s.holds(i)).collect::<Vec<_>>(),
+            vec![1, 4]
+        );
+        for bad in ["0/3", "4/3", "3", "a/b", "1/0"] {
+            assert!(parse_shard(bad).is_err(), "{bad}");
+        }
     }
 
     #[test]

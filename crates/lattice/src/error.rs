@@ -369,6 +369,55 @@ pub enum LatticeError {
         /// The value as written.
         value: String,
     },
+    // ---- declared phases ----------------------------------------------------------------
+    /// A `phases` entry whose name is reserved or used twice.
+    #[error("{at}: phase name `{name}` {why}; give each declared phase its own name")]
+    BadPhaseName {
+        /// Where the name is.
+        at: Box<Place>,
+        /// The name.
+        name: String,
+        /// What is wrong with it, e.g. "is reserved for the translation-invariant phase".
+        why: String,
+    },
+    /// A declared phase's supercell that does not fit the lattice or the engine.
+    #[error("{at}: the supercell of phase `{phase}` {detail}")]
+    BadPhaseSupercell {
+        /// Where the supercell is.
+        at: Box<Place>,
+        /// The phase.
+        phase: String,
+        /// What is wrong and what to give instead.
+        detail: String,
+    },
+    /// Not one sign per site of a declared phase's supercell.
+    #[error("{at}: phase `{phase}` lists {given} sign(s) but its {supercell} supercell has {sites} site(s) ({cells} cell(s) × {basis} basis site(s)); give one sign per site, cell by cell (axis 0 fastest), the basis sites in file order within each cell")]
+    PhaseSignCount {
+        /// Where `signs` is.
+        at: Box<Place>,
+        /// The phase.
+        phase: String,
+        /// Signs given.
+        given: usize,
+        /// The supercell, e.g. `2x1`.
+        supercell: String,
+        /// Sites of the supercell.
+        sites: usize,
+        /// Cells of the supercell.
+        cells: usize,
+        /// Basis sites per primitive cell.
+        basis: usize,
+    },
+    /// A declared sign that is not ±1.
+    #[error("{at}: sign {value} of phase `{phase}` is neither +1 nor -1; write +1 or -1")]
+    BadPhaseSign {
+        /// Where the sign is.
+        at: Box<Place>,
+        /// The phase.
+        phase: String,
+        /// The value as written.
+        value: String,
+    },
 }
 
 impl LatticeError {

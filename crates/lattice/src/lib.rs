@@ -35,5 +35,5 @@ pub use cluster::Cluster;
 pub use compact::{CompactLevel, CompactRegion};
 pub use error::LatticeError;
 pub use level::{BondTerm, Level, Region, Skeleton, MAX_CLUSTER_SITES, MAX_MATERIALISED_SITES};
-pub use model::{Bond, Cell, Lattice, LevelSpec, Neighbour, Reference, Site};
+pub use model::{Bond, Cell, Lattice, LevelSpec, Neighbour, PhaseSpec, Reference, Site};
 pub use torus::Torus;

@@ -67,6 +67,18 @@ pub struct LevelSpec {
     pub shapes: Vec<Vec<(usize, Cell)>>,
 }
 
+/// An ordered phase declared under `phases:` in the file: a ±1 pattern on a supercell.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PhaseSpec {
+    /// The phase's name, as reports print it.
+    pub name: String,
+    /// Primitive cells of the supercell along each axis (unused dimensions 1).
+    pub supercell: [usize; 3],
+    /// One sign (±1) per site of the supercell, numbered as [`Lattice::supercell`]
+    /// numbers them: basis sites fastest, then cells along axis 0, 1, 2.
+    pub signs: Vec<f64>,
+}
+
 /// A known critical temperature to compare against, with its published source.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Reference {
@@ -89,6 +101,7 @@ pub struct Lattice {
     pub(crate) bonds: Vec<Bond>,
     pub(crate) levels: Vec<LevelSpec>,
     pub(crate) reference: Option<Reference>,
+    pub(crate) phases: Vec<PhaseSpec>,
 }
 
 impl Lattice {
@@ -135,6 +148,12 @@ impl Lattice {
     /// The file's `reference:`, if any.
     pub fn reference(&self) -> Option<&Reference> {
         self.reference.as_ref()
+    }
+    /// The ordered phases the file declares under `phases:` (patterns on supercells of
+    /// this lattice's cell; empty on a lattice made by [`Lattice::supercell`], whose cell
+    /// the patterns no longer refer to).
+    pub fn declared_phases(&self) -> &[PhaseSpec] {
+        &self.phases
     }
 
     /// A copy with a different uniform field.
@@ -473,6 +492,7 @@ impl Lattice {
             bonds,
             levels,
             reference: self.reference.clone(),
+            phases: Vec::new(),
         })
     }
 }

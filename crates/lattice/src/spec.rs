@@ -15,6 +15,7 @@
 mod brackets;
 mod build;
 mod levels;
+mod phases;
 mod read;
 mod schema;
 mod yaml;
@@ -43,6 +44,7 @@ pub(crate) struct LatticeSpec {
     pub bonds: Vec<BondSpec>,
     pub levels: Vec<LevelRaw>,
     pub reference: Option<ReferenceSpec>,
+    pub phases: Vec<PhaseRaw>,
 }
 
 /// `couplings:` as read: (name, value) in file order.
@@ -88,6 +90,15 @@ pub(crate) struct LevelRaw {
     pub name: Item<String>,
     pub loc: Loc,
     pub shapes: Shapes,
+}
+
+/// One entry of `phases:` as read: name, supercell, signs (each with its location).
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct PhaseRaw {
+    pub name: Item<String>,
+    pub loc: Loc,
+    pub supercell: Item<Vec<Item<i128>>>,
+    pub signs: Item<Vec<Item<f64>>>,
 }
 
 /// `reference: {tc, source}`.

@@ -48,5 +48,6 @@ pub(crate) fn lattice(
             })
             .collect(),
         reference: None,
+        phases: Vec::new(),
     }
 }

@@ -238,3 +238,19 @@ pub fn disordered_basis(sites: usize, h: f64) -> Basis {
         }
     }
 }
+
+impl<'a> Disordered<'a> {
+    /// The follower of the same level in another field `field`, sharing the point-group
+    /// reduction already built (no warm start: its first solve starts cold). Used to
+    /// follow the disordered state along a path in h at fixed temperature.
+    pub fn at_field(&self, field: f64) -> Disordered<'a> {
+        Disordered {
+            level: self.level,
+            field,
+            basis: disordered_basis(self.level.sites_per_cell, field),
+            reduced: self.reduced.clone(),
+            warm: RefCell::new(None),
+            t_high: self.t_high - self.field.abs() + field.abs(),
+        }
+    }
+}

@@ -96,4 +96,10 @@ pub enum SolveError {
         /// What went wrong.
         detail: String,
     },
+    /// A field that is not a finite number.
+    #[error("field {h} is not a finite number; give a finite h in units of the coupling")]
+    BadField {
+        /// The value given.
+        h: f64,
+    },
 }

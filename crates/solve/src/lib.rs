@@ -10,6 +10,8 @@
 //! * [`sweep`], [`sweep_report`]: thermodynamics along a path, and its reportable result
 //!   (the JSON of `rungs sweep`);
 //! * [`cautions`]: the caution notes those reports share.
+//! * [`phases`]: phase diagrams — every phase's branch, first- and second-order
+//!   transitions, spinodals, tricritical points, the alloy view.
 //!
 //! Conventions: spins ±1, `H = −Σ J s_i s_j − h Σ s_i`, k_B = 1; the functional is per
 //! unit cell, every reported observable per site.
@@ -28,6 +30,7 @@ pub mod linalg;
 pub mod order_parameter;
 pub mod ordering;
 pub mod phase;
+pub mod phases;
 pub mod qspace;
 pub mod search;
 pub mod state;

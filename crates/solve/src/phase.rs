@@ -777,3 +777,74 @@ fn check_entropy(p: &mut PhasePoint) {
 pub fn expand_values(values: &[f64], cell: &PhaseCell) -> Vec<f64> {
     expand(values, &cell.map)
 }
+
+/// A state on an ordered branch of a [`PhaseFollower`]'s cell, for callers that follow
+/// branches themselves (phase diagrams): the flip basis's signs and the state in it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct OrderedState {
+    /// The sign per cell site of the flip basis the state is written in.
+    pub signs: Vec<f64>,
+    /// The state (flip probabilities relative to `signs`).
+    pub x: Vec<f64>,
+}
+
+impl<'c> PhaseFollower<'c> {
+    /// The field this follower works in.
+    pub fn field(&self) -> f64 {
+        self.field
+    }
+
+    /// A follower of the same cell in another field, sharing the disordered state's
+    /// symmetry reduction; it remembers no previous point.
+    pub fn at_field(&self, field: f64) -> PhaseFollower<'c> {
+        PhaseFollower {
+            primitive_lattice: self.primitive_lattice,
+            cell: self.cell,
+            field,
+            disordered: self.disordered.at_field(field),
+            last: None,
+            tc_hint: self.tc_hint,
+            floor: None,
+        }
+    }
+
+    /// A cold start of the ordered branch at `t` (product states of the cell's pattern
+    /// around the disordered state, or continuation down from the Tc hint): the state,
+    /// when one exists whose free energy is below the disordered state's (any ordered
+    /// state when the disordered one cannot be solved) and whose order parameter is not
+    /// zero.
+    pub fn start_ordered_state(&mut self, t: f64) -> Result<Option<OrderedState>, SolveError> {
+        if !(t.is_finite() && t > 0.0) {
+            return Err(SolveError::BadTemperature { t });
+        }
+        let dis = self.disordered_state(t).ok();
+        Ok(self
+            .start_ordered(t, dis.as_ref())?
+            .map(|(signs, x, _)| OrderedState { signs, x }))
+    }
+
+    /// The ordered state `from` (at temperature `tw`, this follower's field) continued to
+    /// `t`: directly, or in sub-steps even in 1/T with the Boltzmann predictor; its signs
+    /// renewed from the result.
+    pub fn continue_ordered_state(
+        &self,
+        tw: f64,
+        from: &OrderedState,
+        t: f64,
+    ) -> Result<OrderedState, SolveError> {
+        let (signs, x) = self.continue_ordered(tw, &from.signs, &from.x, t)?;
+        Ok(OrderedState { signs, x })
+    }
+
+    /// The minimum reached by Newton (with the escape from saddles) from `from` at `t` in
+    /// this follower's field: the step of a path in h at fixed temperature.
+    pub fn resolve_ordered_state(
+        &self,
+        from: &OrderedState,
+        t: f64,
+    ) -> Result<OrderedState, SolveError> {
+        let x = self.solve_ordered(t, &from.signs, from.x.clone())?;
+        let (signs, x) = self.resign(t, &from.signs, x);
+        Ok(OrderedState { signs, x })
+    }
+}

@@ -10,6 +10,8 @@
 pub mod inspect;
 pub mod ladder;
 pub mod mc;
+pub mod merge;
+pub mod phases;
 pub mod sweep;
 pub mod tc;
 
@@ -28,6 +30,8 @@ pub fn run(command: &Command) -> Result<(), CliError> {
         Command::Tc(a) => tc::run(a, &mut Output::from_args(&a.common)),
         Command::Sweep(a) => sweep::run(a, &mut Output::from_args(&a.common)),
         Command::Ladder(a) => ladder::run(a, &mut Output::from_args(&a.common)),
+        Command::Phases(a) => phases::run(a, &mut Output::from_args(&a.common)),
+        Command::Merge(a) => merge::run(a, &mut Output::new(a.format, a.output.clone())),
         Command::Mc(a) => mc::run(a, &mut Output::from_args(&a.common)),
     }
 }

@@ -8,6 +8,7 @@
 pub mod file;
 pub mod inspect;
 pub mod ladder;
+pub mod phases;
 pub mod style;
 pub mod sweep;
 

@@ -28,6 +28,7 @@ pub(crate) fn build(ctx: &Ctx, spec: &LatticeSpec) -> Result<Lattice, LatticeErr
         .collect();
     let bonds = bonds(ctx, &spec.bonds, &names, &couplings, d)?;
     let levels = super::levels::build_levels(ctx, &spec.levels, &names, &bonds, d)?;
+    let phases = super::phases::build_phases(ctx, &spec.phases, names.count(), d)?;
     let reference = match &spec.reference {
         Some(r) if r.tc.value > 0.0 => Some(Reference {
             tc: r.tc.value,
@@ -52,6 +53,7 @@ pub(crate) fn build(ctx: &Ctx, spec: &LatticeSpec) -> Result<Lattice, LatticeErr
         bonds,
         levels,
         reference,
+        phases,
     })
 }
 

@@ -28,6 +28,7 @@ const TOP_KEYS: &[&str] = &[
     "bonds",
     "clusters",
     "reference",
+    "phases",
 ];
 const SITE_KEYS: &[&str] = &["name", "position"];
 const BOND_KEYS: &[&str] = &["from", "to", "cell", "coupling"];
@@ -88,6 +89,10 @@ pub(crate) fn read(ctx: &Ctx, root: &Node) -> Result<LatticeSpec, LatticeError> 
         .optional("reference")
         .map(|n| read_reference(ctx, n))
         .transpose()?;
+    let phases = match top.optional("phases") {
+        Some(n) => super::phases::read_phases(ctx, n)?,
+        None => Vec::new(),
+    };
     Ok(LatticeSpec {
         name,
         description,
@@ -99,6 +104,7 @@ pub(crate) fn read(ctx: &Ctx, root: &Node) -> Result<LatticeSpec, LatticeError> 
         bonds,
         levels,
         reference,
+        phases,
     })
 }
 
