@@ -127,7 +127,18 @@ pub fn run(setup: &PhaseDiagramSetup, index: usize) -> PathResult {
     let grid = work.grid(&runs, &eq);
     let mut used: Vec<(usize, usize)> = Vec::new();
     let transitions = work.transitions(&runs, &eq, &mut used);
-    let spinodals = work.spinodals(&runs, &used);
+    let mut spinodals = work.spinodals(&runs, &used);
+    // Below a second-order transition out of the disordered phase (along T) that phase
+    // is unstable, not metastable: an end of a disordered stretch found there (a state
+    // judged stable only within rounding, deep in the ordered region) is no spinodal.
+    if along == Along::Temperature {
+        let lowest_second = transitions
+            .iter()
+            .filter(|t| t.kind == Kind::Second && t.above == "disordered")
+            .map(|t| t.temperature)
+            .fold(f64::NEG_INFINITY, f64::max);
+        spinodals.retain(|s| !(s.phase == "disordered" && s.temperature < lowest_second));
+    }
     let mut result = PathResult {
         index,
         fixed,
