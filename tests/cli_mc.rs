@@ -3,7 +3,7 @@
 
 mod common;
 
-use common::{ok, rungs};
+use common::{ok, rungs, with_j};
 use serde_json::Value;
 
 fn mc(args: &[&str]) -> Value {
@@ -170,28 +170,6 @@ fn a_torus_too_large_for_memory_is_refused_before_it_is_built() {
         ],
         &["sweeps", "at least 64"],
     );
-}
-
-/// A shipped lattice with `J: 1.0` → `J: j` and its (ferromagnetic) reference dropped.
-fn with_j(dir: &tempfile::TempDir, stem: &str, j: f64) -> String {
-    let text = std::fs::read_to_string(format!("lattices/{stem}.yaml")).unwrap();
-    let mut out = String::new();
-    let mut skip = false;
-    for line in text.lines() {
-        if line.starts_with("reference:") {
-            skip = true;
-            continue;
-        }
-        if skip && line.starts_with("  ") {
-            continue;
-        }
-        skip = false;
-        out.push_str(&line.replace("J: 1.0", &format!("J: {j}")));
-        out.push('\n');
-    }
-    let path = dir.path().join(format!("{stem}_{j}.yaml"));
-    std::fs::write(&path, out).unwrap();
-    path.to_str().unwrap().to_string()
 }
 
 #[test]

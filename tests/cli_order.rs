@@ -10,29 +10,6 @@ fn json(args: &[&str]) -> Value {
     serde_json::from_str(&text).unwrap_or_else(|e| panic!("{args:?}: not JSON ({e}): {text}"))
 }
 
-/// A shipped lattice written to a temporary file with `J: 1.0` → `J: j` and without
-/// its (ferromagnetic) reference.
-fn with_j(dir: &tempfile::TempDir, stem: &str, j: f64) -> String {
-    let text = std::fs::read_to_string(format!("lattices/{stem}.yaml")).unwrap();
-    let mut out = String::new();
-    let mut skip = false;
-    for line in text.lines() {
-        if line.starts_with("reference:") {
-            skip = true;
-            continue;
-        }
-        if skip && line.starts_with("  ") {
-            continue;
-        }
-        skip = false;
-        out.push_str(&line.replace("J: 1.0", &format!("J: {j}")));
-        out.push('\n');
-    }
-    let path = dir.path().join(format!("{stem}_{j}.yaml"));
-    std::fs::write(&path, out).unwrap();
-    path.to_str().unwrap().to_string()
-}
-
 fn csv_rows(text: &str) -> Vec<Vec<String>> {
     text.lines()
         .skip(1)

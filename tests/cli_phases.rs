@@ -8,24 +8,7 @@ use serde_json::Value;
 
 /// The square lattice with `J: j` and no reference, written into `dir`.
 fn square(dir: &tempfile::TempDir, j: f64) -> String {
-    let text = std::fs::read_to_string("lattices/square.yaml").unwrap();
-    let mut out = String::new();
-    let mut skip = false;
-    for line in text.lines() {
-        if line.starts_with("reference:") {
-            skip = true;
-            continue;
-        }
-        if skip && line.starts_with("  ") {
-            continue;
-        }
-        skip = false;
-        out.push_str(&line.replace("J: 1.0", &format!("J: {j}")));
-        out.push('\n');
-    }
-    let path = dir.path().join(format!("square_{j}.yaml"));
-    std::fs::write(&path, out).unwrap();
-    path.to_str().unwrap().to_string()
+    with_j(dir, "square", j)
 }
 
 fn status(args: &[&str]) -> (Option<i32>, String) {

@@ -27,3 +27,32 @@ pub fn ok(args: &[&str]) -> String {
     }
     stdout
 }
+
+/// A lattice file's text with its couplings `J: 1.0` replaced by `J: j` and its
+/// `reference:` block dropped (the reference is the ferromagnet's).
+pub fn with_j_text(text: &str, j: f64) -> String {
+    let mut out = String::new();
+    let mut skip = false;
+    for line in text.lines() {
+        if line.starts_with("reference:") {
+            skip = true;
+            continue;
+        }
+        if skip && line.starts_with("  ") {
+            continue;
+        }
+        skip = false;
+        out.push_str(&line.replace("J: 1.0", &format!("J: {j}")));
+        out.push('\n');
+    }
+    out
+}
+
+/// A shipped lattice written to a temporary file with `J: 1.0` → `J: j` and without its
+/// (ferromagnetic) reference; the file's path.
+pub fn with_j(dir: &tempfile::TempDir, stem: &str, j: f64) -> String {
+    let text = std::fs::read_to_string(format!("lattices/{stem}.yaml")).unwrap();
+    let path = dir.path().join(format!("{stem}_{j}.yaml"));
+    std::fs::write(&path, with_j_text(&text, j)).unwrap();
+    path.to_str().unwrap().to_string()
+}

@@ -35,3 +35,31 @@ pub fn chain(j: f64) -> Lattice {
 pub fn onsager_tc() -> f64 {
     2.0 / (1.0 + 2f64.sqrt()).ln()
 }
+
+/// A lattice file's text with its couplings `J: 1.0` replaced by `J: j` and its
+/// `reference:` block dropped (the reference is the ferromagnet's).
+pub fn with_j_text(text: &str, j: f64) -> String {
+    let mut out = String::new();
+    let mut skip = false;
+    for line in text.lines() {
+        if line.starts_with("reference:") {
+            skip = true;
+            continue;
+        }
+        if skip && line.starts_with("  ") {
+            continue;
+        }
+        skip = false;
+        out.push_str(&line.replace("J: 1.0", &format!("J: {j}")));
+        out.push('\n');
+    }
+    out
+}
+
+/// A shipped lattice file with its couplings `J: 1.0` replaced by `J: j` and no reference.
+pub fn with_j(stem: &str, j: f64) -> Lattice {
+    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("../../lattices")
+        .join(format!("{stem}.yaml"));
+    inline(&with_j_text(&std::fs::read_to_string(path).unwrap(), j))
+}

@@ -11,29 +11,6 @@ use rungs_solve::{
     critical_temperature, sweep_level, ModeKind, SweepOptions, SweepPoint, TcOptions,
 };
 
-/// A shipped lattice file with its couplings `J: 1.0` replaced by `J: j` and no reference.
-fn with_j(stem: &str, j: f64) -> Lattice {
-    let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../../lattices")
-        .join(format!("{stem}.yaml"));
-    let text = std::fs::read_to_string(path).unwrap();
-    let mut out = String::new();
-    let mut skip = false;
-    for line in text.lines() {
-        if line.starts_with("reference:") {
-            skip = true;
-            continue;
-        }
-        if skip && line.starts_with("  ") {
-            continue;
-        }
-        skip = false;
-        out.push_str(&line.replace("J: 1.0", &format!("J: {j}")));
-        out.push('\n');
-    }
-    inline(&out)
-}
-
 /// The solved points of a sweep of one level (panics on an omitted point).
 fn sweep(l: &Lattice, name: &str, temps: &[f64], field: f64) -> Vec<PhasePoint> {
     let lv = level(l, name);
