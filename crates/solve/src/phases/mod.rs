@@ -20,7 +20,7 @@
 //!   disordered state (the smallest eigenvalue of `H(q)` over the ordered cell's
 //!   wavevectors crossing zero, as `tc` does). Ends of branches that are not transitions
 //!   (spinodals, the limits of metastability) are reported apart.
-//! * [`assemble`]: the diagram from its paths, in any order and from any number of
+//! * [`mod@assemble`]: the diagram from its paths, in any order and from any number of
 //!   separately computed parts (paths are independent, so a diagram split into shards
 //!   and merged is the same diagram), with tricritical points where a line of
 //!   transitions changes kind between two neighbouring paths.
