@@ -735,13 +735,7 @@ impl<'a> Functional<'a> {
                 self.add_gram(r, ri, x, pos, m, &mut acc)?;
                 continue;
             }
-            let size = 1usize << k.n;
-            let rows: Vec<(usize, usize)> = (1..size)
-                .filter_map(|c| {
-                    let row = pos[k.vars[c] as usize];
-                    (row != usize::MAX).then_some((c, row))
-                })
-                .collect();
+            let rows = block_rows(k, pos);
             for &(c, rc) in &rows {
                 for &(d, rd) in &rows {
                     acc[rc + m * rd] += k.entry_dd(c, d);
@@ -834,13 +828,7 @@ impl<'a> Functional<'a> {
         let mut acc = vec![Dd::ZERO; if precise { m * m } else { 0 }];
         let mut h = DMatrix::<f64>::zeros(m, m);
         for k in &kernels {
-            let size = 1usize << k.n;
-            let rows: Vec<(usize, usize)> = (1..size)
-                .filter_map(|c| {
-                    let row = pos[k.vars[c] as usize];
-                    (row != usize::MAX).then_some((c, row))
-                })
-                .collect();
+            let rows = block_rows(k, pos);
             for &(c, rc) in &rows {
                 for &(d, rd) in &rows {
                     if precise {
@@ -1150,4 +1138,15 @@ impl Block {
     pub fn gather(&self, x: &[f64]) -> DVector<f64> {
         DVector::from_iterator(self.vars.len(), self.vars.iter().map(|&v| x[v]))
     }
+}
+
+/// The masks of kernel `k` whose variable is in the block (`pos[var]` its row, or
+/// `usize::MAX`): (mask, row).
+fn block_rows(k: &RegionKernel<'_>, pos: &[usize]) -> Vec<(usize, usize)> {
+    (1..1usize << k.n)
+        .filter_map(|c| {
+            let row = pos[k.vars[c] as usize];
+            (row != usize::MAX).then_some((c, row))
+        })
+        .collect()
 }

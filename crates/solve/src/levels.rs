@@ -367,6 +367,30 @@ pub fn tc_levels(
     Ok(rows)
 }
 
+/// [`search`] of level `index`, announced to `observe` (its first stage, every stage of
+/// the search, and its outcome).
+fn observed_search(
+    lattice: &Lattice,
+    p: &Prepared,
+    index: usize,
+    below: Option<f64>,
+    field: f64,
+    observe: &(dyn Fn(LevelEvent<'_>) + Sync),
+) -> LevelTc {
+    let stage = |stage: &str| observe(LevelEvent::Stage { index, stage });
+    stage(if p.big {
+        "Tc search on point-group orbits"
+    } else {
+        "Tc search"
+    });
+    let row = search(lattice, p, below, field, &stage);
+    observe(LevelEvent::Finished {
+        index,
+        outcome: row.outcome_word(),
+    });
+    row
+}
+
 /// [`Schedule::Parallel`].
 fn parallel(
     lattice: &Lattice,
@@ -394,32 +418,12 @@ fn parallel(
             if p.big {
                 return None;
             }
-            observe(LevelEvent::Stage {
-                index,
-                stage: "Tc search",
-            });
-            let stage = |stage: &str| observe(LevelEvent::Stage { index, stage });
-            let row = search(lattice, p, None, field, &stage);
-            observe(LevelEvent::Finished {
-                index,
-                outcome: row.outcome_word(),
-            });
-            Some(row)
+            Some(observed_search(lattice, p, index, None, field, observe))
         })
         .collect::<Vec<_>>();
     for (index, p) in prepared.iter().enumerate().filter(|(_, p)| p.big) {
         let below = start_below(rows.iter().flatten(), p.max_cluster_sites);
-        observe(LevelEvent::Stage {
-            index,
-            stage: "Tc search on point-group orbits",
-        });
-        let stage = |stage: &str| observe(LevelEvent::Stage { index, stage });
-        let row = search(lattice, p, below, field, &stage);
-        observe(LevelEvent::Finished {
-            index,
-            outcome: row.outcome_word(),
-        });
-        rows[index] = Some(row);
+        rows[index] = Some(observed_search(lattice, p, index, below, field, observe));
     }
     Ok(rows.into_iter().flatten().collect())
 }
@@ -438,27 +442,8 @@ fn chained(
             stage: "building clusters",
         });
         let p = prepare(lattice, name)?;
-        observe(LevelEvent::Stage {
-            index,
-            stage: if p.big {
-                "Tc search on point-group orbits"
-            } else {
-                "Tc search"
-            },
-        });
-        let stage = |stage: &str| observe(LevelEvent::Stage { index, stage });
-        let row = search(
-            lattice,
-            &p,
-            start_below(rows.iter(), p.max_cluster_sites),
-            field,
-            &stage,
-        );
-        observe(LevelEvent::Finished {
-            index,
-            outcome: row.outcome_word(),
-        });
-        rows.push(row);
+        let below = start_below(rows.iter(), p.max_cluster_sites);
+        rows.push(observed_search(lattice, &p, index, below, field, observe));
     }
     Ok(rows)
 }

@@ -167,12 +167,10 @@ impl<'f> QHessian<'f> {
         let mut rows = Vec::new();
         for (k, offs) in self.kernels.iter().zip(&self.offsets) {
             rows.clear();
-            for (mask, t) in offs.iter().enumerate().skip(1) {
-                let row = self.block.pos[k.vars[mask] as usize];
-                if row != usize::MAX {
-                    rows.push((mask, row, phase(q, t) * self.row_scale[row]));
-                }
-            }
+            rows.extend(
+                self.block_masks(k, offs)
+                    .map(|(mask, row, t)| (mask, row, phase(q, t) * self.row_scale[row])),
+            );
             for &(c, rc, pc) in &rows {
                 let pc = pc.conj();
                 for &(d, rd, pd) in &rows {
@@ -194,6 +192,35 @@ impl<'f> QHessian<'f> {
     /// `H(q)` for a wavevector whose phases are all real (see [`is_real`]); summed in
     /// double-double when the kernels are (a paramagnet at low temperature, whose soft
     /// entries are differences of entries 10⁹ times larger).
+    /// The masks of kernel `k` whose variable is in the block: (mask, block row, the
+    /// mask's cell offset).
+    fn block_masks<'s>(
+        &'s self,
+        k: &'s RegionKernel<'_>,
+        offs: &'s [Cell],
+    ) -> impl Iterator<Item = (usize, usize, &'s Cell)> + 's {
+        offs.iter().enumerate().skip(1).filter_map(|(mask, t)| {
+            let row = self.block.pos[k.vars[mask] as usize];
+            (row != usize::MAX).then_some((mask, row, t))
+        })
+    }
+
+    /// [`Self::block_masks`] with the real phase (±1 at a real wavevector) times the row
+    /// scale, into `rows`.
+    fn real_rows(
+        &self,
+        k: &RegionKernel<'_>,
+        offs: &[Cell],
+        q: &Wavevector,
+        rows: &mut Vec<(usize, usize, f64)>,
+    ) {
+        rows.clear();
+        rows.extend(
+            self.block_masks(k, offs)
+                .map(|(mask, row, t)| (mask, row, phase(q, t).re.signum() * self.row_scale[row])),
+        );
+    }
+
     fn real_matrix(&self, q: &Wavevector) -> DMatrix<f64> {
         if self.kernels.iter().any(|k| k.kernel_lo.is_some()) {
             return self.real_matrix_dd(q);
@@ -202,13 +229,7 @@ impl<'f> QHessian<'f> {
         let mut h = DMatrix::<f64>::zeros(m, m);
         let mut rows = Vec::new();
         for (k, offs) in self.kernels.iter().zip(&self.offsets) {
-            rows.clear();
-            for (mask, t) in offs.iter().enumerate().skip(1) {
-                let row = self.block.pos[k.vars[mask] as usize];
-                if row != usize::MAX {
-                    rows.push((mask, row, phase(q, t).re.signum() * self.row_scale[row]));
-                }
-            }
+            self.real_rows(k, offs, q, &mut rows);
             for &(c, rc, pc) in &rows {
                 for &(d, rd, pd) in &rows {
                     h[(rc, rd)] += pc * pd * k.entry(c, d);
@@ -231,13 +252,7 @@ impl<'f> QHessian<'f> {
         let mut acc = vec![Dd::ZERO; m * m];
         let mut rows = Vec::new();
         for (k, offs) in self.kernels.iter().zip(&self.offsets) {
-            rows.clear();
-            for (mask, t) in offs.iter().enumerate().skip(1) {
-                let row = self.block.pos[k.vars[mask] as usize];
-                if row != usize::MAX {
-                    rows.push((mask, row, phase(q, t).re.signum() * self.row_scale[row]));
-                }
-            }
+            self.real_rows(k, offs, q, &mut rows);
             for &(c, rc, pc) in &rows {
                 for &(d, rd, pd) in &rows {
                     acc[rc + m * rd] += k.entry_dd(c, d).mul_f64(pc * pd);
