@@ -83,11 +83,22 @@ impl<'a> Disordered<'a> {
     /// The follower of `level` (of `lattice`) in field `field`.
     pub fn new(lattice: &Lattice, level: &'a Level, field: f64) -> Disordered<'a> {
         let ops = symmetry::level_group(level, &symmetry::point_group(lattice));
+        Disordered::with_group(level, field, &ops, crate::tc::mean_field_scale(lattice))
+    }
+
+    /// [`Disordered::new`] with the level's point group `ops` and the lattice's
+    /// mean-field Tc already at hand (the Tc search has both).
+    pub fn with_group(
+        level: &'a Level,
+        field: f64,
+        ops: &[symmetry::SiteMap],
+        mean_field_tc: f64,
+    ) -> Disordered<'a> {
         let reduced = (ops.len() > 1).then(|| {
-            let orbit_of = symmetry::variable_orbits(level, &ops);
+            let orbit_of = symmetry::variable_orbits(level, ops);
             (level.reduced(&orbit_of), orbit_of)
         });
-        let t_high = 1.5 * crate::tc::mean_field_scale(lattice) + field.abs() + 1e-3;
+        let t_high = 1.5 * mean_field_tc + field.abs() + 1e-3;
         Disordered {
             level,
             field,

@@ -94,6 +94,9 @@ pub enum Bracket {
         lo: f64,
         /// Above Tc.
         hi: f64,
+        /// The probe's value at `lo` and at `hi` (handed to [`refine_known`], which then
+        /// need not probe the ends again).
+        values: (f64, f64),
     },
     /// Positive down to `down_to` (the lowest temperature searched): no Tc above it.
     Stable {
@@ -150,7 +153,11 @@ pub fn step_down(
             return Ok(Bracket::Noise { at: next });
         }
         if f <= 0.0 || probe.unstable(next) {
-            return Ok(Bracket::Found { lo: next, hi: t });
+            return Ok(Bracket::Found {
+                lo: next,
+                hi: t,
+                values: (f, f_hi),
+            });
         }
         prev = Some((t, f_hi));
         t = next;
@@ -164,10 +171,24 @@ pub fn step_down(
 
 /// The root of the probe in `[lo, hi]` to a relative tolerance (Brent's method).
 pub fn refine(probe: &mut dyn Probe, lo: f64, hi: f64, relative: f64) -> Result<f64, SolveError> {
+    refine_known(probe, lo, hi, (f64::NAN, f64::NAN), relative)
+}
+
+/// [`refine`] with the probe's values at `lo` and `hi` already known (from the
+/// step-down's [`Bracket::Found`]; NaN where not known): Brent starts from them
+/// instead of probing both ends again.
+pub fn refine_known(
+    probe: &mut dyn Probe,
+    lo: f64,
+    hi: f64,
+    values: (f64, f64),
+    relative: f64,
+) -> Result<f64, SolveError> {
     let name = probe.name().to_string();
     let root = Root {
         probe: RefCell::new(probe),
         error: RefCell::new(None),
+        known: [(lo, values.0), (hi, values.1)],
     };
     let solver = BrentRoot::new(lo, hi, relative * hi);
     let result = Executor::new(&root, solver)
@@ -190,12 +211,17 @@ pub fn refine(probe: &mut dyn Probe, lo: f64, hi: f64, relative: f64) -> Result<
 struct Root<'p> {
     probe: RefCell<&'p mut dyn Probe>,
     error: RefCell<Option<SolveError>>,
+    /// Values already known at two temperatures (NaN: unknown).
+    known: [(f64, f64); 2],
 }
 
 impl CostFunction for &Root<'_> {
     type Param = f64;
     type Output = f64;
     fn cost(&self, t: &f64) -> Result<f64, argmin::core::Error> {
+        if let Some(&(_, v)) = self.known.iter().find(|k| k.0 == *t && !k.1.is_nan()) {
+            return Ok(v);
+        }
         let value = self.probe.borrow_mut().value(*t);
         match value {
             Ok(v) => Ok(v),
@@ -226,10 +252,11 @@ mod tests {
     fn finds_the_root_of_a_smooth_probe() {
         for rules in [StepRules::default(), StepRules::creeping()] {
             let mut p = Line(2.269);
-            let Bracket::Found { lo, hi } = step_down(&mut p, 4.0, 0.1, rules).unwrap() else {
+            let Bracket::Found { lo, hi, values } = step_down(&mut p, 4.0, 0.1, rules).unwrap()
+            else {
                 panic!("no bracket");
             };
-            let tc = refine(&mut p, lo, hi, 1e-12).unwrap();
+            let tc = refine_known(&mut p, lo, hi, values, 1e-12).unwrap();
             assert!((tc - 2.269).abs() < 1e-10);
             assert!(matches!(
                 step_down(&mut Line(0.01), 4.0, 0.1, rules).unwrap(),
@@ -237,7 +264,7 @@ mod tests {
             ));
             // Started below the root, the search first climbs above it.
             let mut p = Line(2.269);
-            let Bracket::Found { lo, hi } = step_down(&mut p, 2.0, 0.1, rules).unwrap() else {
+            let Bracket::Found { lo, hi, .. } = step_down(&mut p, 2.0, 0.1, rules).unwrap() else {
                 panic!("no bracket from below");
             };
             assert!(lo <= 2.269 && 2.269 < hi, "{lo} {hi}");

@@ -32,7 +32,8 @@ use crate::error::SolveError;
 pub use crate::ordering::ModeKind;
 use crate::ordering::Ordering;
 use crate::qspace::{coupling_top, is_real, LowestMode, Projection, QHessian, Wavevector};
-use crate::search::{refine, step_down, Bracket, Probe, StepRules};
+use crate::search::{refine_known, step_down, Bracket, Probe, StepRules};
+use rayon::prelude::*;
 
 /// The critical point of one level.
 #[derive(Debug, Clone)]
@@ -305,10 +306,14 @@ struct QProbe<'a, 'l> {
     follower: &'l Disordered<'a>,
     candidates: RefCell<Vec<Candidate>>,
     name: String,
-    /// The last temperature probed, its noise scale and the candidate that was lowest.
+    /// The last temperature probed (successfully), its noise scale and the candidate
+    /// that was lowest.
     last: RefCell<(f64, f64, usize)>,
     /// Where the search is (for the observer).
     phase: RefCell<&'static str>,
+    /// While refining a root, the one candidate that went soft at the bracket's lower
+    /// end (`None`: every candidate).
+    only: std::cell::Cell<Option<usize>>,
     observe: &'l (dyn Fn(&str) + Sync),
 }
 
@@ -320,19 +325,16 @@ impl QProbe<'_, '_> {
         let _ = &f;
         let noise = SCALED_NOISE;
         let (mut best, mut arg) = (f64::INFINITY, 0);
-        // While stepping down, whether a less symmetric mode went soft first is checked
-        // at every probe; inside the bracket (Brent) only once, just above the root
-        // found (see `critical_temperature_observed`).
-        let full_check = *self.phase.borrow() == STEPPING_DOWN;
-        for (i, c) in self.candidates.borrow_mut().iter_mut().enumerate() {
-            let mut v = c.value(&qh);
-            // The symmetric subspace is an accelerator: when the full H(q) is not
-            // positive definite although the subspace says stable, a less symmetric mode
-            // is the soft one, and this candidate is watched on the full block from now.
-            if full_check && c.projection.is_some() && v > 0.0 && !qh.is_positive_definite(&c.q) {
-                c.projection = None;
-                v = c.value(&qh);
+        // Candidates are followed on their symmetric subspaces; whether a less symmetric
+        // mode went soft first is checked on the full blocks just above the root found,
+        // and where the step-down ends without one (see `critical_temperature_observed`).
+        // Inside the bracket only the candidate soft at its lower end is followed.
+        let only = self.only.get();
+        for (i, c) in self.candidates.borrow().iter().enumerate() {
+            if only.is_some_and(|o| o != i) {
+                continue;
             }
+            let v = c.value(&qh);
             // Earlier candidates (points of high symmetry) win ties.
             if v < best - TIE.max(1e-15 * v.abs()) {
                 best = v;
@@ -367,7 +369,7 @@ impl Probe for QProbe<'_, '_> {
     }
 }
 
-/// The phase of the search in which every probe checks the full blocks.
+/// The first phase of the search (for the observer).
 const STEPPING_DOWN: &str = "stepping down";
 
 /// Rounding scale of the eigenvalues of the scaled `H(q)` (entries O(1)): below it the
@@ -425,16 +427,17 @@ pub fn critical_temperature_observed(
     let start = Instant::now();
     let d = lattice.dimension();
     let h = options.field;
-    let scale = mean_field_scale(lattice).max(1e-12);
-    let follower = Disordered::new(lattice, level, h);
+    let maxima = mean_field_maxima(lattice);
+    let scale = maxima.first().map_or(0.0, |&(_, v)| v).max(1e-12);
     let ops = symmetry::level_group(level, &symmetry::point_group(lattice));
+    let follower = Disordered::with_group(level, h, &ops, scale);
     let sector = follower.sector();
     let watch = |q: Wavevector| Candidate {
         q,
         projection: Some(Projection::new(level, &ops, &q, &sector)),
     };
     let mut qs: Vec<Wavevector> = special_points(d);
-    for (q, _) in mean_field_maxima(lattice) {
+    for (q, _) in maxima {
         if !qs.iter().any(|p| same_q(p, &q, d)) {
             qs.push(q);
         }
@@ -446,19 +449,60 @@ pub fn critical_temperature_observed(
         candidates: RefCell::new(candidates),
         name: level.name.clone(),
         last: RefCell::new((f64::NAN, 0.0, 0)),
+        only: std::cell::Cell::new(None),
         phase: RefCell::new(STEPPING_DOWN),
         observe,
     };
     let t_min = scale * options.lowest_fraction;
     let rules = StepRules::default();
-    let verify = irreducible(&ops, d, zone_grid(d, verification_grid(d)));
+    let verify = irreducible(
+        &ops,
+        d,
+        zone_grid(d, verification_grid(d)),
+        verification_grid(d),
+    );
     let mut t_start = options.start_below.unwrap_or(scale * 1.02);
     let mut notes = Vec::new();
     for _round in 0..4 {
         *probe.phase.borrow_mut() = STEPPING_DOWN;
-        let bracket = step_down(&mut probe, t_start, t_min, rules)?;
-        let (lo, hi) = match bracket {
-            Bracket::Found { lo, hi } => (lo, hi),
+        // A step-down that ends without a bracket (stable to the bottom, or a
+        // disordered state that cannot be followed lower) may have passed a less
+        // symmetric instability that the symmetric subspaces do not see: the full blocks
+        // at the last temperature probed decide, and the search runs again on them.
+        let bracket = step_down(&mut probe, t_start, t_min, rules);
+        if !matches!(
+            bracket,
+            Ok(Bracket::Found { .. }) | Ok(Bracket::Noise { .. })
+        ) {
+            let t_last = probe.last.borrow().0;
+            if t_last.is_finite() {
+                let (fb, xb) = follower.solve(t_last)?;
+                let qb = QHessian::scaled(&fb, lattice, &xb, follower.sector(), false)
+                    .ok_or_else(|| infeasible(&level.name, t_last))?;
+                let hidden: Vec<Candidate> = probe
+                    .candidates
+                    .borrow()
+                    .iter()
+                    .filter(|c| {
+                        c.projection
+                            .as_ref()
+                            .is_some_and(|p| p.len() < qb.block().vars.len())
+                            && !qb.is_positive_definite(&c.q)
+                    })
+                    .map(|c| Candidate {
+                        q: c.q,
+                        projection: None,
+                    })
+                    .collect();
+                if !hidden.is_empty() {
+                    watch_also(&mut probe.candidates.borrow_mut(), hidden, d);
+                    continue;
+                }
+            }
+        }
+        let bracket = bracket?;
+        let (lo, hi, values) = match bracket {
+            Bracket::Found { lo, hi, values } => (lo, hi, values),
             Bracket::Stable { down_to } | Bracket::Noise { at: down_to } => {
                 return Ok(no_transition(
                     level,
@@ -470,7 +514,23 @@ pub fn critical_temperature_observed(
             }
         };
         *probe.phase.borrow_mut() = "root";
-        let tc = refine(&mut probe, lo, hi, options.relative_tolerance)?;
+        // Brent follows the candidate that is soft at the lower end; if another one is
+        // already unstable at the root it finds, that one went soft first and the
+        // bracket is refined again on every candidate.
+        let soft = probe.last.borrow().2;
+        probe.only.set(Some(soft));
+        let mut tc = refine_known(
+            &mut probe,
+            lo,
+            hi,
+            (values.0, f64::NAN),
+            options.relative_tolerance,
+        )?;
+        probe.only.set(None);
+        if probe.value(tc)? < -SCALED_NOISE && probe.last.borrow().2 != soft {
+            // Another candidate is unstable at this root: it went soft first.
+            tc = refine_known(&mut probe, lo, hi, values, options.relative_tolerance)?;
+        }
         observe(&format!(
             "checking every wavevector near Tc = {}",
             crate::report_num(tc)
@@ -482,10 +542,9 @@ pub fn critical_temperature_observed(
         let (_, arg) =
             {
                 let c = probe.candidates.borrow();
-                let tie = TIE;
                 c.iter().enumerate().map(|(i, c)| (c.value(&qh), i)).fold(
                     (f64::INFINITY, 0),
-                    |a, b| if b.0 < a.0 - tie { b } else { a },
+                    |a, b| if b.0 < a.0 - TIE { b } else { a },
                 )
             };
         let q_star = probe.candidates.borrow()[arg].q;
@@ -494,15 +553,24 @@ pub fn critical_temperature_observed(
         // A local minimum over q is kept as it is (points of high symmetry stay exact);
         // otherwise the compass search moves it.
         let step = 1.0 / 64.0;
-        let neighbour_lower = directions(d).iter().any(|dir| {
-            [1.0, -1.0].iter().any(|sgn| {
-                let mut p = q_star;
-                for k in 0..d {
-                    p[k] += sgn * step * dir[k];
-                }
-                !qh.is_positive_definite_above(&p, lam_star - tol)
+        let neighbours: Vec<Wavevector> = directions(d)
+            .iter()
+            .flat_map(|dir| {
+                [1.0, -1.0].map(|sgn| {
+                    let mut p = q_star;
+                    for k in 0..d {
+                        p[k] += sgn * step * dir[k];
+                    }
+                    p
+                })
             })
-        });
+            .collect();
+        let lower = |p: &Wavevector| !qh.is_positive_definite_above(p, lam_star - tol);
+        let neighbour_lower = if worth_threads(&qh) {
+            neighbours.par_iter().any(lower)
+        } else {
+            neighbours.iter().any(lower)
+        };
         let (q_ref, lam_ref) =
             if neighbour_lower || !is_real(&q_star) && !exact_fraction(&q_star, d) {
                 pattern_search(&q_star, d, step, |q| qh.lowest_value(q))
@@ -524,48 +592,16 @@ pub fn critical_temperature_observed(
         let (fc, xc) = follower.solve(t_check)?;
         let qc = QHessian::scaled(&fc, lattice, &xc, follower.sector(), false)
             .ok_or_else(|| infeasible(&level.name, t_check))?;
-        // A candidate watched on its symmetric subspace whose full H(q) is not positive
-        // definite just above the root: a less symmetric mode there is the soft one; it
-        // is watched on the full block from now.
-        for c in probe.candidates.borrow().iter() {
-            if c.projection.is_some() && !qc.is_positive_definite(&c.q) {
-                new_q.push(Candidate {
-                    q: c.q,
-                    projection: None,
-                });
-            }
-        }
-        for q in &verify {
-            if !qc.is_positive_definite(q) {
-                let (qr, _) = pattern_search(q, d, 0.5 / verification_grid(d) as f64, |p| {
-                    qc.lowest_value(p)
-                });
-                new_q.push(Candidate {
-                    q: canonical(&qr, d),
-                    projection: None,
-                });
-                break;
-            }
-        }
+        new_q.extend(soft_elsewhere(&qc, &probe.candidates.borrow(), &verify, d));
         if new_q.is_empty() {
             observe("ordering pattern and critical amplitude");
             let chosen = &probe.candidates.borrow()[arg];
-            let cp = finish(lattice, level, &follower, tc, chosen, &mut notes, start)?;
+            let cp = finish(
+                lattice, level, &ops, &follower, tc, chosen, &mut notes, start,
+            )?;
             return Ok(cp);
         }
-        {
-            let mut c = probe.candidates.borrow_mut();
-            for q in new_q {
-                match c
-                    .iter_mut()
-                    .find(|p| same_q(&p.q, &q.q, d) && p.projection.is_some())
-                {
-                    Some(p) if q.projection.is_none() => p.projection = None,
-                    Some(_) => {}
-                    None => c.push(q),
-                }
-            }
-        }
+        watch_also(&mut probe.candidates.borrow_mut(), new_q, d);
         // A wavevector more unstable than the candidates: Tc is higher; search again
         // from above.
         t_start = hi.max(tc) * 1.05;
@@ -576,19 +612,46 @@ pub fn critical_temperature_observed(
     })
 }
 
-/// One wavevector of each star among `grid` (the others have the same spectrum).
-fn irreducible(ops: &[symmetry::SiteMap], d: usize, grid: Vec<Wavevector>) -> Vec<Wavevector> {
+/// One wavevector of each star among `grid` (the others have the same spectrum): a
+/// grid of `n` points per axis, which the point group maps onto itself; each point is
+/// keyed by its integer coordinates `n·q mod n`, and a point is kept when neither it nor
+/// −it was reached from a point kept before.
+fn irreducible(
+    ops: &[symmetry::SiteMap],
+    d: usize,
+    grid: Vec<Wavevector>,
+    n: usize,
+) -> Vec<Wavevector> {
+    let key = |q: &Wavevector| -> [i64; 3] {
+        let mut k = [0i64; 3];
+        for i in 0..d {
+            k[i] = ((q[i] * n as f64).round() as i64).rem_euclid(n as i64);
+        }
+        k
+    };
+    let inverses: Vec<[[i32; 3]; 3]> = ops.iter().filter_map(|op| inverse3(&op.rot)).collect();
+    let mut seen = std::collections::HashSet::new();
     let mut out: Vec<Wavevector> = Vec::new();
     for q in grid {
-        let star = star_under(ops, &q, d);
-        if !out.iter().any(|p| star.iter().any(|s| same_q(p, s, d))) {
-            out.push(q);
+        if seen.contains(&key(&q)) {
+            continue;
         }
+        for inv in &inverses {
+            // q' = (R⁻¹)ᵀ q, and −q'.
+            let mut p = [0.0; 3];
+            for (i, pi) in p.iter_mut().enumerate() {
+                *pi = (0..3).map(|k| inv[k][i] as f64 * q[k]).sum();
+            }
+            seen.insert(key(&p));
+            seen.insert(key(&p.map(|v| -v)));
+        }
+        seen.insert(key(&q));
+        seen.insert(key(&q.map(|v| -v)));
+        out.push(q);
     }
     out
 }
 
-/// Whether every component is a fraction with a small denominator.
 fn exact_fraction(q: &Wavevector, d: usize) -> bool {
     q[..d]
         .iter()
@@ -684,6 +747,65 @@ fn big_level(
     Ok(cp)
 }
 
+/// The wavevectors soft in `qh` that the candidates' symmetric subspaces do not see: a
+/// candidate whose full `H(q)` is not positive definite (a less symmetric mode there is
+/// the soft one; it is watched on the full block from now), and the first wavevector of
+/// the grid `verify` that is unstable, moved to its local minimum by a compass search.
+fn soft_elsewhere(
+    qh: &QHessian,
+    candidates: &[Candidate],
+    verify: &[Wavevector],
+    d: usize,
+) -> Vec<Candidate> {
+    let mut new_q: Vec<Candidate> = candidates
+        .iter()
+        .filter(|c| c.projection.is_some() && !qh.is_positive_definite(&c.q))
+        .map(|c| Candidate {
+            q: c.q,
+            projection: None,
+        })
+        .collect();
+    // The grid's factorisations are independent: spread over the threads (the first
+    // unstable wavevector in grid order is kept, as a sequential scan would).
+    let soft = |q: &Wavevector| !qh.is_positive_definite(q);
+    let unstable = if worth_threads(qh) {
+        verify.par_iter().position_first(soft)
+    } else {
+        verify.iter().position(soft)
+    };
+    if let Some(i) = unstable {
+        let (qr, _) = pattern_search(&verify[i], d, 0.5 / verification_grid(d) as f64, |p| {
+            qh.lowest_value(p)
+        });
+        new_q.push(Candidate {
+            q: canonical(&qr, d),
+            projection: None,
+        });
+    }
+    new_q
+}
+
+/// Add `new_q` to the candidates: a wavevector already watched on its symmetric subspace
+/// is watched on the full block instead.
+fn watch_also(candidates: &mut Vec<Candidate>, new_q: Vec<Candidate>, d: usize) {
+    for q in new_q {
+        match candidates
+            .iter_mut()
+            .find(|p| same_q(&p.q, &q.q, d) && p.projection.is_some())
+        {
+            Some(p) if q.projection.is_none() => p.projection = None,
+            Some(_) => {}
+            None => candidates.push(q),
+        }
+    }
+}
+
+/// Whether factorisations of `H(q)` are worth spreading over threads: below order 48
+/// one takes microseconds, less than waking the pool.
+fn worth_threads(qh: &QHessian) -> bool {
+    qh.block().vars.len() >= 48
+}
+
 /// Points per axis of the verification grid.
 fn verification_grid(d: usize) -> usize {
     match d {
@@ -727,6 +849,7 @@ fn no_transition(
 fn finish(
     lattice: &Lattice,
     level: &Level,
+    ops: &[symmetry::SiteMap],
     follower: &Disordered,
     tc: f64,
     chosen: &Candidate,
@@ -754,7 +877,7 @@ fn finish(
     let ordering = Ordering::new(d, q, site_u.clone());
     // λ'(Tc) from the Rayleigh quotient of the critical vector at Tc ± δ; with
     // ẽ = D^{-1/2} e, χ = ẽ† H̃⁻¹ ẽ ≈ |ẽ†ũ|² / λ̃, and ẽ†ũ = e†u for u = D^{-1/2} ũ.
-    let delta = 1e-3 * tc;
+    let delta = 2e-4 * tc;
     let rayleigh = |t: f64| -> Result<f64, SolveError> {
         let (f, x) = follower.solve(t)?;
         let qh = QHessian::scaled(&f, lattice, &x, follower.sector(), false)
@@ -762,10 +885,10 @@ fn finish(
         let m = qh.matrix(&q);
         Ok((u.adjoint() * m * u)[(0, 0)].re)
     };
-    // Five-point stencil: error O(δ⁴).
-    let slope = (8.0 * (rayleigh(tc + delta)? - rayleigh(tc - delta)?)
-        - (rayleigh(tc + 2.0 * delta)? - rayleigh(tc - 2.0 * delta)?))
-        / (12.0 * delta);
+    // Central difference: truncation error (δ/T)²·O(1) ~ 10⁻⁸ relative, rounding of the
+    // scaled eigenvalue (~10⁻¹⁵) over 2δ·λ' at most ~10⁻⁶ relative for the largest
+    // clusters (whose scaled λ' is ~10⁻⁵); two solves, each a step from Tc's state.
+    let slope = (rayleigh(tc + delta)? - rayleigh(tc - delta)?) / (2.0 * delta);
     follower.solve(tc)?;
     let s = &ordering.site_mode;
     let norm: f64 = s.iter().map(|c| c.norm_sqr()).sum();
@@ -817,8 +940,7 @@ fn finish(
             crate::ordering::MAX_SUPERCELL_SITES
         ));
     }
-    let ops = symmetry::level_group(level, &symmetry::point_group(lattice));
-    let star = star_under(&ops, &ordering.rational_wavevector(), d);
+    let star = star_under(ops, &ordering.rational_wavevector(), d);
     if star.len() >= 3 || (follower.field() != 0.0 && has_cubic_invariant(&star, d)) {
         notes.push(format!(
             "this Tc is where the disordered phase becomes unstable (a spinodal); the ordering wavevector has {} symmetry-equivalent partners{}, so the ordered phase may appear by a first-order jump above this Tc — compare free energies with `rungs phases`",

@@ -115,7 +115,7 @@ pub fn critical_temperature_compact(
     let bracket = step_down(&mut probe, start, t_min, StepRules::creeping())?;
     let nb = level.sites_per_cell;
     let (lo, hi) = match bracket {
-        Bracket::Found { lo, hi } => (lo, hi),
+        Bracket::Found { lo, hi, .. } => (lo, hi),
         Bracket::Stable { down_to } | Bracket::Noise { at: down_to } => {
             return Ok(CriticalPoint {
                 level: level.name.clone(),

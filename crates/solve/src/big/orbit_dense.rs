@@ -357,7 +357,7 @@ pub fn critical_temperature_orbits_dense(
     let bracket = step_down(&mut probe, t_start, t_min, rules)?;
     let nb = level.sites_per_cell;
     let (t_lo, t_hi) = match bracket {
-        Bracket::Found { lo, hi } => (lo, hi),
+        Bracket::Found { lo, hi, .. } => (lo, hi),
         Bracket::Stable { down_to } | Bracket::Noise { at: down_to } => {
             return Ok(CriticalPoint {
                 level: level.name.clone(),
