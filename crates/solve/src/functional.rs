@@ -827,35 +827,65 @@ impl<'a> Functional<'a> {
         let kernels = self.region_kernels(x, precise)?;
         let mut acc = vec![Dd::ZERO; if precise { m * m } else { 0 }];
         let mut h = DMatrix::<f64>::zeros(m, m);
+        // The Hessian is symmetric: each unordered pair of masks is visited once and
+        // summed into the upper triangle (a pair of masks of one variable twice onto
+        // its diagonal), with the kernel scaled once per region.
         for k in &kernels {
             let rows = block_rows(k, pos);
-            for &(c, rc) in &rows {
-                for &(d, rd) in &rows {
-                    if precise {
-                        acc[rc + m * rd] += k.entry_dd(c, d);
-                    } else {
-                        h[(rc, rd)] += k.entry(c, d);
-                    }
-                }
+            if precise {
+                let lo = k.kernel_lo.as_deref();
+                let scaled: Vec<Dd> = (0..k.kernel.len())
+                    .map(|i| {
+                        Dd {
+                            hi: k.kernel[i],
+                            lo: lo.map_or(0.0, |l| l[i]),
+                        }
+                        .mul_f64(k.scale)
+                    })
+                    .collect();
+                let entry = |c: usize, d: usize| match k.kind {
+                    KernelKind::Xor => scaled[c ^ d],
+                    KernelKind::And if (c ^ d).count_ones().is_multiple_of(2) => scaled[c & d],
+                    KernelKind::And => -scaled[c & d],
+                };
+                upper_pairs(&rows, m, |at, v2, c, d| {
+                    let v = entry(c, d);
+                    acc[at] += if v2 { v + v } else { v };
+                });
+            } else {
+                let scaled: Vec<f64> = k.kernel.iter().map(|v| v * k.scale).collect();
+                let entry = |c: usize, d: usize| match k.kind {
+                    KernelKind::Xor => scaled[c ^ d],
+                    KernelKind::And => parity_sign(c ^ d) * scaled[c & d],
+                };
+                let hs = h.as_mut_slice();
+                upper_pairs(&rows, m, |at, v2, c, d| {
+                    let v = entry(c, d);
+                    hs[at] += if v2 { v + v } else { v };
+                });
             }
         }
         for &(a, b, c) in self.quadratic_terms() {
             let (pa, pb) = (pos[a], pos[b]);
             if pa != usize::MAX && pb != usize::MAX {
+                let (lo, hi) = (pa.min(pb), pa.max(pb));
+                let v = if lo == hi { 2.0 * c } else { c };
                 if precise {
-                    acc[pa + m * pb] = acc[pa + m * pb].add_f64(c);
-                    acc[pb + m * pa] = acc[pb + m * pa].add_f64(c);
+                    acc[lo + m * hi] = acc[lo + m * hi].add_f64(v);
                 } else {
-                    h[(pa, pb)] += c;
-                    h[(pb, pa)] += c;
+                    h[(lo, hi)] += v;
                 }
             }
         }
-        if precise {
-            for j in 0..m {
-                for i in 0..m {
-                    h[(i, j)] = acc[i + m * j].to_f64();
-                }
+        for j in 0..m {
+            for i in 0..=j {
+                let v = if precise {
+                    acc[i + m * j].to_f64()
+                } else {
+                    h[(i, j)]
+                };
+                h[(i, j)] = v;
+                h[(j, i)] = v;
             }
         }
         Some(h)
@@ -1142,6 +1172,24 @@ impl Block {
 
 /// The masks of kernel `k` whose variable is in the block (`pos[var]` its row, or
 /// `usize::MAX`): (mask, row).
+/// Every unordered pair {i ≤ j} of `rows` (mask, block row) once: `visit(index of the
+/// upper-triangle entry (column-major, order m), whether the pair counts twice there
+/// (two different masks of one variable), mask i, mask j)`.
+#[inline]
+fn upper_pairs(
+    rows: &[(usize, usize)],
+    m: usize,
+    mut visit: impl FnMut(usize, bool, usize, usize),
+) {
+    for (i, &(c, rc)) in rows.iter().enumerate() {
+        visit(rc + m * rc, false, c, c);
+        for &(d, rd) in &rows[i + 1..] {
+            let (a, b) = if rc <= rd { (rc, rd) } else { (rd, rc) };
+            visit(a + m * b, a == b, c, d);
+        }
+    }
+}
+
 fn block_rows(k: &RegionKernel<'_>, pos: &[usize]) -> Vec<(usize, usize)> {
     (1..1usize << k.n)
         .filter_map(|c| {

@@ -171,21 +171,16 @@ impl<'f> QHessian<'f> {
                 self.block_masks(k, offs)
                     .map(|(mask, row, t)| (mask, row, phase(q, t) * self.row_scale[row])),
             );
-            for &(c, rc, pc) in &rows {
-                let pc = pc.conj();
-                for &(d, rd, pd) in &rows {
-                    h[(rc, rd)] += pc * pd * k.entry(c, d);
-                }
-            }
+            hermitian_pairs(&rows, k, &mut h);
         }
         for &(a, b, c, cell) in &self.quad {
             let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
             if pa != usize::MAX && pb != usize::MAX {
                 let ph = phase(q, &cell) * (c * self.row_scale[pa] * self.row_scale[pb]);
-                h[(pa, pb)] += ph;
-                h[(pb, pa)] += ph.conj();
+                add_upper(&mut h, pa, pb, ph);
             }
         }
+        mirror_upper(&mut h);
         h
     }
 
@@ -230,18 +225,19 @@ impl<'f> QHessian<'f> {
         let mut rows = Vec::new();
         for (k, offs) in self.kernels.iter().zip(&self.offsets) {
             self.real_rows(k, offs, q, &mut rows);
-            for &(c, rc, pc) in &rows {
-                for &(d, rd, pd) in &rows {
-                    h[(rc, rd)] += pc * pd * k.entry(c, d);
-                }
-            }
+            symmetric_pairs(&rows, k, &mut h);
         }
         for &(a, b, c, cell) in &self.quad {
             let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
             if pa != usize::MAX && pb != usize::MAX {
                 let ph = phase(q, &cell).re.signum() * c * self.row_scale[pa] * self.row_scale[pb];
-                h[(pa, pb)] += ph;
-                h[(pb, pa)] += ph;
+                let (lo, hi) = (pa.min(pb), pa.max(pb));
+                h[(lo, hi)] += if lo == hi { 2.0 * ph } else { ph };
+            }
+        }
+        for j in 0..m {
+            for i in 0..j {
+                h[(j, i)] = h[(i, j)];
             }
         }
         h
@@ -475,12 +471,7 @@ impl QHessian<'_> {
                     }
                 }
             }
-            for &(c, rc, pc) in &rows {
-                let pc = pc.conj();
-                for &(d, rd, pd) in &rows {
-                    h[(rc, rd)] += pc * pd * k.entry(c, d);
-                }
-            }
+            hermitian_pairs(&rows, k, &mut h);
         }
         for &(a, b, c, cell) in &self.quad {
             let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
@@ -490,10 +481,10 @@ impl QHessian<'_> {
             let ((ca, aa), (cb, ab)) = (proj.rows[pa], proj.rows[pb]);
             if ca != usize::MAX && cb != usize::MAX {
                 let ph = phase(q, &cell) * self.row_scale[pa] * self.row_scale[pb];
-                h[(ca, cb)] += aa.conj() * ab * ph * c;
-                h[(cb, ca)] += ab.conj() * aa * ph.conj() * c;
+                add_upper(&mut h, ca, cb, aa.conj() * ab * ph * c);
             }
         }
+        mirror_upper(&mut h);
         h
     }
 
@@ -524,6 +515,56 @@ impl QHessian<'_> {
             return f64::INFINITY;
         }
         linalg::min_eigenvalue_complex(&self.projected_matrix(q, proj))
+    }
+}
+
+/// `Σ_{c,d} conj(p_c) p_d K(c, d)` into rows (r_c, r_d) of the upper triangle of `h`,
+/// each unordered pair of masks visited once (the matrix is Hermitian; the lower
+/// triangle is filled by [`mirror_upper`]).
+fn hermitian_pairs(
+    rows: &[(usize, usize, Complex<f64>)],
+    k: &RegionKernel<'_>,
+    h: &mut DMatrix<Complex<f64>>,
+) {
+    for (i, &(c, rc, pc)) in rows.iter().enumerate() {
+        h[(rc, rc)] += pc.norm_sqr() * k.entry(c, c);
+        let pc = pc.conj();
+        for &(d, rd, pd) in &rows[i + 1..] {
+            add_upper(h, rc, rd, pc * pd * k.entry(c, d));
+        }
+    }
+}
+
+/// The real counterpart of [`hermitian_pairs`].
+fn symmetric_pairs(rows: &[(usize, usize, f64)], k: &RegionKernel<'_>, h: &mut DMatrix<f64>) {
+    for (i, &(c, rc, pc)) in rows.iter().enumerate() {
+        h[(rc, rc)] += pc * pc * k.entry(c, c);
+        for &(d, rd, pd) in &rows[i + 1..] {
+            let v = pc * pd * k.entry(c, d);
+            let (lo, hi) = (rc.min(rd), rc.max(rd));
+            h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
+        }
+    }
+}
+
+/// Add `v` at (r, s) and its conjugate at (s, r), written on the upper triangle only.
+#[inline]
+fn add_upper(h: &mut DMatrix<Complex<f64>>, r: usize, s: usize, v: Complex<f64>) {
+    if r < s {
+        h[(r, s)] += v;
+    } else if r > s {
+        h[(s, r)] += v.conj();
+    } else {
+        h[(r, r)] += Complex::new(2.0 * v.re, 0.0);
+    }
+}
+
+/// Fill the lower triangle of a Hermitian matrix from its upper triangle.
+fn mirror_upper(h: &mut DMatrix<Complex<f64>>) {
+    for j in 0..h.ncols() {
+        for i in 0..j {
+            h[(j, i)] = h[(i, j)].conj();
+        }
     }
 }
 
