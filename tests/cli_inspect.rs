@@ -23,6 +23,7 @@ const KNOWN: &[(&str, u64, bool)] = &[
     ("simple_cubic", 6, true),
     ("bcc", 8, true),
     ("fcc", 12, false),
+    ("fcc_af", 12, false),
     ("diamond", 4, true),
 ];
 

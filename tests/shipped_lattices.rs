@@ -48,6 +48,13 @@ const SHIPPED: &[(&str, usize, usize, bool, &[&str])] = &[
     ),
     ("diamond", 2, 4, true, &["stars", "hexagons"]),
     ("layered_magnet", 1, 6, true, &["plaquette", "box"]),
+    (
+        "fcc_af",
+        1,
+        12,
+        false,
+        &["tetrahedra", "tetrahedra_octahedron"],
+    ),
 ];
 
 fn lattices_dir() -> PathBuf {
@@ -453,8 +460,8 @@ fn estimated_reference_temperatures_are_one_over_the_published_coupling() {
 #[test]
 fn files_without_a_known_tc_carry_no_reference() {
     // The chain has no transition at T > 0 (Ising 1925, Z. Phys. 31, 253); the layered
-    // magnet is a made-up demo.
-    for stem in ["chain", "layered_magnet"] {
+    // magnet is a made-up demo; the fcc antiferromagnet has no exact Tc.
+    for stem in ["chain", "layered_magnet", "fcc_af"] {
         assert!(load(stem).reference().is_none(), "{stem}");
     }
 }
@@ -507,4 +514,26 @@ fn diamond_hexagons_is_ill_posed_and_says_so() {
         docs.contains("`hexagons` (ill-posed, no Tc)"),
         "docs/lattices.md table"
     );
+}
+
+#[test]
+fn the_fcc_antiferromagnet_is_the_fcc_file_with_j_reversed() {
+    // The alloy demo must stay the fcc lattice, its bonds and levels, with J → −J; that
+    // is what makes it frustrated (three mutually neighbouring sites: common practice).
+    let (f, af) = (load("fcc"), load("fcc_af"));
+    assert_eq!(f.vectors(), af.vectors());
+    assert_eq!(f.bonds().len(), af.bonds().len());
+    for (a, b) in f.bonds().iter().zip(af.bonds()) {
+        assert_eq!((a.from, a.to, a.cell), (b.from, b.to, b.cell));
+        assert_eq!(a.j, -b.j);
+    }
+    assert_eq!(Level::names(&f), Level::names(&af));
+    for name in Level::names(&f) {
+        assert_eq!(
+            summary(&level("fcc", &name)),
+            summary(&level("fcc_af", &name)),
+            "{name}"
+        );
+    }
+    assert!(!f.is_frustrated() && af.is_frustrated());
 }

@@ -142,8 +142,18 @@ pub fn step_down(
                 next = (zero - rules.margin * t).clamp(rules.min_ratio * t, rules.max_ratio * t);
             }
         }
-        let next = next.max(t_min);
-        let f = probe.value(next).map_err(|e| SolveError::TcSearch {
+        let mut next = next.max(t_min);
+        // A step too far below Tc may land where the disordered state cannot be
+        // followed: halve it (up to four times) before giving up.
+        let mut f = probe.value(next);
+        for _ in 0..4 {
+            if f.is_ok() {
+                break;
+            }
+            next = t - 0.5 * (t - next);
+            f = probe.value(next);
+        }
+        let f = f.map_err(|e| SolveError::TcSearch {
             level: probe.name().to_string(),
             detail: format!(
                 "stable down to T = {t}, but the disordered state could not be followed below it ({e}); no Tc can be claimed either way"

@@ -454,7 +454,15 @@ pub fn critical_temperature_observed(
         observe,
     };
     let t_min = scale * options.lowest_fraction;
-    let rules = StepRules::default();
+    // Started just above this level's Tc (a smaller cluster's Tc), the first step is
+    // short: a long one would land far inside the ordered region.
+    let rules = match options.start_below {
+        Some(_) => StepRules {
+            first_ratio: 0.98,
+            ..StepRules::default()
+        },
+        None => StepRules::default(),
+    };
     let verify = irreducible(
         &ops,
         d,

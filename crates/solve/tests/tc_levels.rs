@@ -245,3 +245,32 @@ fn square_block4_lies_between_the_exact_tc_and_the_3x3_block() {
     );
     assert!(cp.amplitude.unwrap() > 0.0);
 }
+
+#[test]
+fn a_search_started_from_a_smaller_clusters_tc_finds_the_same_root() {
+    // The ladder starts each level just above the Tc of the next smaller cluster. The
+    // bcc cube-plus-octahedra level lies 1.3 % below its octahedra level; a first step
+    // of 10 % once landed where the disordered state cannot be followed, and the level
+    // was reported as not computed. The root must not depend on where the search
+    // starts (common practice).
+    let l = shipped("bcc");
+    let lv = level(&l, "cube_octahedra");
+    let free = critical_temperature(&l, &lv, TcOptions::default())
+        .unwrap()
+        .tc
+        .unwrap();
+    let below = tc("bcc", "octahedra");
+    let chained = critical_temperature(
+        &l,
+        &lv,
+        TcOptions {
+            start_below: Some(below * 1.01),
+            ..TcOptions::default()
+        },
+    )
+    .unwrap()
+    .tc
+    .unwrap();
+    assert!((free / chained - 1.0).abs() < 1e-8, "{free} vs {chained}");
+    assert!(free < below);
+}
