@@ -50,17 +50,18 @@ pub fn order_note(lattice: &Lattice) -> String {
                 that holds the order (`rungs sweep` follows the ordered phase on it)."
         .to_string();
     if frustrated {
-        format!(
-            "IMPORTANT: frustrated couplings (no change of spin signs makes every bond ferromagnetic). Cluster \
-             approximations may predict order where the exact model has none (the triangular and kagome \
-             antiferromagnets have no transition at any T > 0: Wannier 1950, Phys. Rev. 79, 357; Kanô & \
-             Naya 1953, Prog. Theor. Phys. 10, 158). {}",
-            capitalised(&base)
-        )
+        format!("{} {}", FRUSTRATED, capitalised(&base))
     } else {
         base
     }
 }
+
+/// The caution for a frustrated lattice ([`Lattice::is_frustrated`]): order a cluster
+/// approximation predicts may be absent from the exact model.
+pub const FRUSTRATED: &str = "IMPORTANT: frustrated couplings (no change of spin signs makes every bond \
+     ferromagnetic). Cluster approximations may predict order where the exact model has none (the \
+     triangular and kagome antiferromagnets have no transition at any T > 0: Wannier 1950, Phys. Rev. \
+     79, 357; Kanô & Naya 1953, Prog. Theor. Phys. 10, 158).";
 
 /// `text` with its first letter upper-case.
 fn capitalised(text: &str) -> String {

@@ -234,3 +234,21 @@ fn declared_phase_is_compared_and_loses_to_neel_order() {
     // Weiss mean field: T_N = z|J| = 4 (common practice).
     assert!((t[0].temperature - 4.0).abs() < 1e-8, "{t:?}");
 }
+
+#[test]
+fn points_without_a_phase_and_frustration_are_said() {
+    // The triangular antiferromagnet has no transition at any T > 0 (Wannier 1950,
+    // Phys. Rev. 79, 357); its triangle level orders at h = 0 near T ≈ 0.99, where the
+    // two ordered candidates are degenerate and neither is followed below it. The
+    // diagram must say both things, not leave empty points silently.
+    let l = with_j("triangular", -1.0);
+    let d = diagram(&l, "triangles", &[0.5, 1.5], &[0.0], Along::Temperature);
+    let blank = d.paths[0].grid.iter().filter(|g| g.phase.is_none()).count();
+    let notes = d.header.notes.join(" ") + &d.paths[0].notes.join(" ");
+    assert!(notes.contains("frustrated couplings"), "{notes}");
+    assert_eq!(
+        blank > 0,
+        notes.contains("no phase could be followed at"),
+        "{blank} blank point(s): {notes}"
+    );
+}

@@ -139,6 +139,23 @@ pub fn run(setup: &PhaseDiagramSetup, index: usize) -> PathResult {
             .fold(f64::NEG_INFINITY, f64::max);
         spinodals.retain(|s| !(s.phase == "disordered" && s.temperature < lowest_second));
     }
+    let lost: Vec<f64> = grid
+        .iter()
+        .filter(|g| g.phase.is_none())
+        .map(|g| match along {
+            Along::Temperature => g.temperature,
+            Along::Field => g.field,
+        })
+        .collect();
+    if let Some(first) = lost.first() {
+        work.notes.push(format!(
+            "no phase could be followed at {} of this path's points ({} = {}{}): the disordered state is unstable or unsolved there and no candidate ordered phase converged, so the diagram says nothing about them",
+            lost.len(),
+            work.variable(),
+            crate::report_num(*first),
+            if lost.len() > 1 { ", ..." } else { "" }
+        ));
+    }
     let mut result = PathResult {
         index,
         fixed,

@@ -119,6 +119,9 @@ impl<'a> PhaseDiagramSetup<'a> {
             return Err(SolveError::BadField { h });
         }
         let mut notes = Vec::new();
+        if lattice.is_frustrated() {
+            notes.push(crate::cautions::FRUSTRATED.to_string());
+        }
         let d = lattice.dimension();
         let (ordering, tc0) = match critical_temperature(lattice, level, TcOptions::default()) {
             Ok(cp) if cp.ordering.is_some() => (cp.ordering, cp.tc),
