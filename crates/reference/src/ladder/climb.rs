@@ -259,8 +259,8 @@ pub fn extrapolate(rungs: &[RungResult], notes: &mut Vec<String>) -> Vec<Extrapo
     } else if with_amplitude > 3 && cam {
         notes.push(
             "coherent-anomaly: its uncertainty is twice the largest shift of Tc* among the fit's variants (each \
-             rung left out, a correction-to-scaling term, the inverse-size line through the three largest \
-             rungs): the ladder converges from one side and the variants share that bias"
+             rung left out, a correction-to-scaling term from five rungs on, the inverse-size line through \
+             the three largest rungs): the ladder converges from one side and the variants share that bias"
                 .into(),
         );
     }
