@@ -14,6 +14,25 @@
 //!   inverse susceptibility `g(T) = 1 / (bᵀ H_odd⁻¹ b)` (b = the field direction on
 //!   orbits), which vanishes at Tc linearly and changes sign there; Tc is its root.
 //!
+//! g needs more than doubles near Tc. Every `w[c]` carries the `1/p` of the rarest
+//! cluster states (~10¹² for the 4×4 block at Tc) and H's entries are sums of hundreds
+//! of them; the paramagnet's free energy scatters by ~10⁻¹² and its gradient by ~10⁻¹²;
+//! and `bᵀH⁻¹b` is the difference of huge numbers where H turns singular. In plain
+//! doubles g scattered by ~2·10⁻⁸ from one temperature to the next, 10⁻⁷ in Tc, and the
+//! 4×4 Tc moved by that much with the thread count or a change of 3·10⁻¹² in the 3×3
+//! start. So:
+//!
+//! * the paramagnet is solved as an offset from the last one (probabilities and
+//!   gradient in double-double) to a gradient of 10⁻¹³;
+//! * `H_odd` for g is summed in double-double from a double-double kernel (Newton's
+//!   own Hessians stay in doubles: they only shape the steps);
+//! * g comes from a bordered system, well conditioned at Tc, refined with
+//!   double-double residuals (Wilkinson's iterative refinement; Higham 2002, *Accuracy
+//!   and Stability of Numerical Algorithms*, ch. 12).
+//!
+//! g is then smooth to ~10⁻¹⁴ and the 4×4 Tc agrees with the matrix-free path's to
+//! 5·10⁻¹³ (relative, both roots to 10⁻¹¹).
+//!
 //! The critical mode searched here is the fully symmetric one (uniform order); the
 //! report says so.
 
@@ -24,22 +43,29 @@ use faer::{Mat, Side};
 use rungs_lattice::symmetry::{self, SiteMap};
 use rungs_lattice::{Cluster, Lattice, Level};
 
+use crate::dd::{two_prod, two_sum, Dd};
 use crate::equilibrium::{minimise_with, product_state, HessianSolver, NewtonOptions};
 use crate::error::SolveError;
-use crate::functional::{Block, Functional};
+use crate::functional::{Basis, Block, Functional};
 use crate::search::{refine, step_down, Bracket, StepRules};
 use crate::tc::{CriticalPoint, ModeKind, TcOptions};
-use crate::wht::wht;
 
 /// Most orbit variables per sector the big-level path accepts (a 8000² matrix is 512 MB).
 pub const MAX_REDUCED_VARIABLES: usize = 8000;
 
+/// The paramagnet's gradient tolerance: its double-double gradient reaches ~10⁻¹⁵; on
+/// the 4×4 block near Tc a gradient of 6·10⁻¹¹ left the state 8·10⁻¹⁰ off (soft even
+/// directions) and g 2·10⁻⁹ off, so 10⁻¹³ keeps g to a few 10⁻¹².
+const PARAMAGNET_TOLERANCE: f64 = 1e-13;
+
+/// Refinement steps of the bordered system of g (each: one residual in double-double,
+/// one solve with the factor at hand; one already reaches the residual's rounding).
+const REFINEMENT_STEPS: usize = 2;
+
 /// One region, prepared for symmetric assembly.
 struct RegionPlan {
+    /// Sites of the region (checked against the functional's kernels).
     n: usize,
-    coefficient: f64,
-    /// Orbit variable of every mask (entry 0 unused).
-    vars: Vec<u32>,
     /// Stabiliser-orbit representatives: (mask, orbit size).
     reps: Vec<(u32, f64)>,
 }
@@ -72,6 +98,7 @@ pub struct SymmetricSolver {
     /// Cholesky factor of the unshifted H, kept for chord steps.
     factor: Option<faer::linalg::solvers::Llt<f64>>,
     scratch: Vec<f64>,
+    scratch_lo: Vec<f64>,
 }
 
 impl SymmetricSolver {
@@ -107,12 +134,7 @@ impl SymmetricSolver {
                     }
                     reps.push((m as u32, count));
                 }
-                RegionPlan {
-                    n,
-                    coefficient: r.coefficient as f64,
-                    vars: r.subset_vars.clone(),
-                    reps,
-                }
+                RegionPlan { n, reps }
             })
             .collect();
         SymmetricSolver {
@@ -120,74 +142,223 @@ impl SymmetricSolver {
             h: None,
             factor: None,
             scratch: Vec::new(),
+            scratch_lo: Vec::new(),
         }
     }
 
-    /// The reduced Hessian of `f` (on the reduced level) at `x`, on `block`.
+    /// The reduced Hessian of `f` (on the reduced level) at `x`, on `block`, in doubles.
     fn hessian(&mut self, f: &Functional, x: &[f64], block: &Block) -> Option<Mat<f64>> {
+        self.assemble_parts(f, x, block, false).map(|(h, _)| h)
+    }
+
+    /// The same in double-double, as `(hi, lo)` with `H = hi + lo`: the kernels
+    /// `W(1/p)` from double-double probabilities, every sum compensated (each addition's
+    /// rounding error, exact by TwoSum/TwoProd, carried in `lo`: Ogita, Rump & Oishi
+    /// 2005, SIAM J. Sci. Comput. 26, 1955).
+    pub fn hessian_precise(
+        &mut self,
+        f: &Functional,
+        x: &[f64],
+        block: &Block,
+    ) -> Option<(Mat<f64>, Mat<f64>)> {
+        self.assemble_parts(f, x, block, true)
+            .and_then(|(h, lo)| Some((h, lo?)))
+    }
+
+    /// Symmetric assembly over the stabilisers' representatives; `lo` only when
+    /// `precise`.
+    fn assemble_parts(
+        &mut self,
+        f: &Functional,
+        x: &[f64],
+        block: &Block,
+        precise: bool,
+    ) -> Option<(Mat<f64>, Option<Mat<f64>>)> {
         let m = block.vars.len();
+        let kernels = f.region_kernels(x, precise)?;
+        debug_assert_eq!(kernels.len(), self.plans.len());
         let mut h = Mat::<f64>::zeros(m, m);
-        let t = f.temperature();
-        for plan in &self.plans {
-            let size = 1usize << plan.n;
-            let mut w = vec![0.0; size];
-            w[0] = 1.0;
-            for (slot, &v) in w.iter_mut().zip(&plan.vars).skip(1) {
-                *slot = x[v as usize];
-            }
-            wht(&mut w);
-            let inv = size as f64;
-            for q in w.iter_mut() {
-                let p = *q / inv;
-                if p <= 0.0 {
-                    return None;
-                }
-                *q = 1.0 / p;
-            }
-            wht(&mut w);
-            let scale = t * plan.coefficient / (inv * inv);
-            let cols: Vec<(u32, u32)> = (1..size)
+        let mut h_lo = precise.then(|| Mat::<f64>::zeros(m, m));
+        self.scratch.resize(m, 0.0);
+        self.scratch_lo.resize(m, 0.0);
+        for (plan, k) in self.plans.iter().zip(&kernels) {
+            debug_assert_eq!(plan.n, k.n);
+            let cols: Vec<(u32, u32)> = (1..1usize << k.n)
                 .filter_map(|d| {
-                    let row = block.pos[plan.vars[d] as usize];
+                    let row = block.pos[k.vars[d] as usize];
                     (row != usize::MAX).then_some((d as u32, row as u32))
                 })
                 .collect();
-            self.scratch.resize(m, 0.0);
             for &(c, mult) in &plan.reps {
-                let rc = block.pos[plan.vars[c as usize] as usize];
+                let rc = block.pos[k.vars[c as usize] as usize];
                 if rc == usize::MAX {
                     continue;
                 }
-                self.scratch.iter_mut().for_each(|s| *s = 0.0);
-                for &(d, rd) in &cols {
-                    self.scratch[rd as usize] += w[(c ^ d) as usize];
-                }
-                let col = h.col_as_slice_mut(rc);
-                let k = scale * mult;
-                for (a, s) in col.iter_mut().zip(&self.scratch) {
-                    *a += k * s;
+                let weight = k.scale * mult;
+                let (sum, sum_lo) = (&mut self.scratch, &mut self.scratch_lo);
+                sum.iter_mut().for_each(|s| *s = 0.0);
+                match (&k.kernel_lo, h_lo.as_mut()) {
+                    (Some(kernel_lo), Some(h_lo)) => {
+                        sum_lo.iter_mut().for_each(|s| *s = 0.0);
+                        for &(d, rd) in &cols {
+                            let (j, r) = ((c ^ d) as usize, rd as usize);
+                            let (s, e) = two_sum(sum[r], k.kernel[j]);
+                            sum[r] = s;
+                            sum_lo[r] += e + kernel_lo[j];
+                        }
+                        let col = h.col_as_slice_mut(rc);
+                        let col_lo = h_lo.col_as_slice_mut(rc);
+                        for i in 0..m {
+                            let (p, pe) = two_prod(weight, sum[i]);
+                            let (s, e) = two_sum(col[i], p);
+                            col[i] = s;
+                            col_lo[i] += e + pe + weight * sum_lo[i];
+                        }
+                    }
+                    _ => {
+                        for &(d, rd) in &cols {
+                            sum[rd as usize] += k.kernel[(c ^ d) as usize];
+                        }
+                        let col = h.col_as_slice_mut(rc);
+                        for (a, s) in col.iter_mut().zip(sum.iter()) {
+                            *a += weight * s;
+                        }
+                    }
                 }
             }
         }
-        for b in &f.level().bond_terms {
-            if let rungs_lattice::BondTerm::Factorised { a, b, j } = *b {
-                let (pa, pb) = (block.pos[a], block.pos[b]);
-                if pa != usize::MAX && pb != usize::MAX {
-                    h[(pa, pb)] -= j;
-                    h[(pb, pa)] -= j;
-                }
+        for &(a, b, c) in f.quadratic_terms() {
+            let (pa, pb) = (block.pos[a], block.pos[b]);
+            if pa != usize::MAX && pb != usize::MAX {
+                h[(pa, pb)] += c;
+                h[(pb, pa)] += c;
             }
         }
         // Symmetrise away the rounding of the representative sums.
         for j in 0..m {
             for i in 0..j {
-                let s = 0.5 * (h[(i, j)] + h[(j, i)]);
-                h[(i, j)] = s;
-                h[(j, i)] = s;
+                match h_lo.as_mut() {
+                    Some(lo) => {
+                        let s = (Dd {
+                            hi: h[(i, j)],
+                            lo: lo[(i, j)],
+                        } + Dd {
+                            hi: h[(j, i)],
+                            lo: lo[(j, i)],
+                        })
+                        .mul_f64(0.5);
+                        (h[(i, j)], lo[(i, j)]) = (s.hi, s.lo);
+                        (h[(j, i)], lo[(j, i)]) = (s.hi, s.lo);
+                    }
+                    None => {
+                        let s = 0.5 * (h[(i, j)] + h[(j, i)]);
+                        h[(i, j)] = s;
+                        h[(j, i)] = s;
+                    }
+                }
             }
         }
-        Some(h)
+        Some((h, h_lo))
     }
+}
+
+/// `g = 1/(bᵀ H⁻¹ b)` with `H = hi + lo`, whether H is positive definite, and the
+/// response `H⁻¹ b`, from the bordered system
+///
+/// ```text
+/// [ H    s b ] [ y ]   [ 0 ]
+/// [ s bᵀ  0  ] [ μ ] = [ 1 ],   μ = −1/(s² bᵀH⁻¹b) = −g/s²,   y = −s μ H⁻¹b,
+/// ```
+///
+/// which stays well conditioned where H turns singular, as long as b is not orthogonal
+/// to H's null vector (Griewank & Reddien 1984, SIAM J. Numer. Anal. 21, 176; Govaerts
+/// 2000, *Numerical Methods for Bifurcations of Dynamical Equilibria*, ch. 3): solving
+/// `H y = b` directly loses g near Tc, where 1/g is the difference of huge numbers. The
+/// bordered matrix M is factorised once as `P M Pᵀ = L B Lᵀ` (Bunch–Kaufman) and the
+/// solution refined with residuals summed in double-double (H symmetric: its rows are
+/// read as columns). s, a power of two, brings b to the size of H's diagonal.
+///
+/// Positive definiteness from the inertia (Sylvester's law): M has that of H plus the
+/// sign of its Schur complement `−s²/g`, so H is positive definite exactly when g > 0
+/// and B has one negative eigenvalue. Unlike a Cholesky factorisation of H, this stays
+/// right where H's smallest eigenvalue is below its rounding (at Tc).
+fn bordered_g(hi: &Mat<f64>, lo: &Mat<f64>, b: &[f64]) -> (f64, bool, Vec<f64>) {
+    let m = b.len();
+    let diag = (0..m).map(|i| hi[(i, i)].abs()).fold(1.0, f64::max);
+    let bmax = b.iter().map(|v| v.abs()).fold(1e-300, f64::max);
+    let s = 2f64.powi((diag.sqrt() / bmax).log2().round() as i32);
+    let lu = Mat::from_fn(m + 1, m + 1, |i, j| match (i < m, j < m) {
+        (true, true) => hi[(i, j)],
+        (true, false) => s * b[i],
+        (false, true) => s * b[j],
+        (false, false) => 0.0,
+    })
+    .lblt(Side::Lower);
+    let negative = negative_eigenvalues(lu.B_diag(), lu.B_subdiag());
+    let solve = |rhs: &[f64]| -> Vec<f64> {
+        let mut z = Mat::from_fn(m + 1, 1, |i, _| rhs[i]);
+        lu.solve_in_place(z.as_mut());
+        (0..=m).map(|i| z[(i, 0)]).collect()
+    };
+    let mut rhs = vec![0.0; m + 1];
+    rhs[m] = 1.0;
+    let mut z = solve(&rhs);
+    for _ in 0..REFINEMENT_STEPS {
+        let (y, mu) = (&z[..m], z[m]);
+        let mut r: Vec<f64> = (0..m)
+            .map(|i| {
+                let (row, row_lo) = (hi.col_as_slice(i), lo.col_as_slice(i));
+                let (p, pe) = two_prod(s * b[i], mu);
+                let mut acc = Dd::from_f64(-p);
+                let mut small = -pe;
+                for ((&a, &a_lo), &yj) in row.iter().zip(row_lo).zip(y) {
+                    let (p, pe) = two_prod(a, yj);
+                    acc = acc.add_f64(-p);
+                    small -= pe + a_lo * yj;
+                }
+                acc.add_f64(small).to_f64()
+            })
+            .collect();
+        let last = b.iter().zip(y).fold(Dd::from_f64(1.0), |acc, (bi, yi)| {
+            acc + Dd::from_f64(-s * bi).mul_f64(*yi)
+        });
+        r.push(last.to_f64());
+        let dz = solve(&r);
+        z.iter_mut().zip(&dz).for_each(|(a, d)| *a += d);
+    }
+    let mu = z[m];
+    let g = -s * s * mu;
+    let response = z[..m].iter().map(|y| -y / (s * mu)).collect();
+    (g, g > 0.0 && negative == 1, response)
+}
+
+/// Negative eigenvalues of the block-diagonal B of an `L B Lᵀ` factorisation (1×1
+/// blocks, and 2×2 blocks where the subdiagonal is non-zero: one of each sign when the
+/// determinant is negative, else both of the diagonal's sign).
+fn negative_eigenvalues(
+    diag: faer::diag::DiagRef<'_, f64>,
+    subdiag: faer::diag::DiagRef<'_, f64>,
+) -> usize {
+    let (d, e) = (diag.column_vector(), subdiag.column_vector());
+    let n = d.nrows();
+    let (mut i, mut count) = (0, 0);
+    while i < n {
+        if i + 1 < n && e[i] != 0.0 {
+            let det = d[i] * d[i + 1] - e[i] * e[i];
+            count += if det < 0.0 {
+                1
+            } else if d[i] < 0.0 {
+                2
+            } else {
+                0
+            };
+            i += 2;
+        } else {
+            count += usize::from(d[i] < 0.0);
+            i += 1;
+        }
+    }
+    count
 }
 
 impl HessianSolver for SymmetricSolver {
@@ -250,44 +421,41 @@ impl BigProbe<'_> {
 
     /// `g(T)`, positive definiteness, and the response `H_odd⁻¹ b` on the orbits.
     fn g_with_response(&self, t: f64) -> Result<(f64, bool, Vec<f64>), SolveError> {
-        let f = self.f.at(t, 0.0);
-        let start = self.warm.borrow().clone();
-        let start = if f.feasible(&start) {
-            start
-        } else {
-            product_state(&f, 0.0)
-        };
+        // The paramagnet as an offset from the last one (double-double probabilities);
+        // once more from its own solution when the offsets grew so large that their
+        // rounding limits the gradient (far from the last temperature).
         let mut solver = self.solver.borrow_mut();
         let opts = NewtonOptions {
-            tolerance: 1e-10,
+            tolerance: PARAMAGNET_TOLERANCE,
             max_iterations: 100,
             chord: true,
         };
-        let sol = minimise_with(&f, start, &self.even, opts, &mut *solver)?;
-        let h = solver
-            .hessian(&f, &sol.x, &self.odd)
+        let mut reference = self.warm.borrow().clone();
+        let mut pass = 0;
+        let (f, sol) = loop {
+            let f = Functional::with_basis(self.f.level(), t, 0.0, Basis::Walsh, Some(reference));
+            let sol = minimise_with(&f, vec![0.0; f.len()], &self.even, opts, &mut *solver)?;
+            let gn = self
+                .even
+                .vars
+                .iter()
+                .map(|&v| sol.evaluation.gradient[v].abs())
+                .fold(0.0, f64::max);
+            pass += 1;
+            if gn <= PARAMAGNET_TOLERANCE || pass == 2 {
+                break (f, sol);
+            }
+            reference = f.values(&sol.x);
+        };
+        let (hi, lo) = solver
+            .hessian_precise(&f, &sol.x, &self.odd)
             .ok_or_else(|| SolveError::TcSearch {
                 level: f.level().name.clone(),
                 detail: format!("paramagnetic solution at T = {t} left the feasible region"),
             })?;
-        *self.warm.borrow_mut() = sol.x;
-        let rhs = Mat::from_fn(self.b.len(), 1, |i, _| self.b[i]);
-        let (y, pd) = match h.llt(Side::Lower) {
-            Ok(llt) => {
-                let mut y = rhs.clone();
-                llt.solve_in_place(y.as_mut());
-                (y, true)
-            }
-            Err(_) => {
-                let lu = h.partial_piv_lu();
-                let mut y = rhs.clone();
-                lu.solve_in_place(y.as_mut());
-                (y, false)
-            }
-        };
-        let y: Vec<f64> = (0..self.b.len()).map(|i| y[(i, 0)]).collect();
-        let s: f64 = self.b.iter().zip(&y).map(|(b, y)| b * y).sum();
-        Ok((1.0 / s, pd, y))
+        *self.warm.borrow_mut() = f.values(&sol.x);
+        let (g, pd, y) = bordered_g(&hi, &lo, &self.b);
+        Ok((g, pd, y))
     }
 }
 
