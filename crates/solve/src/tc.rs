@@ -325,16 +325,25 @@ impl QProbe<'_, '_> {
         let _ = &f;
         let noise = SCALED_NOISE;
         let (mut best, mut arg) = (f64::INFINITY, 0);
-        // Candidates are followed on their symmetric subspaces; whether a less symmetric
-        // mode went soft first is checked on the full blocks just above the root found,
-        // and where the step-down ends without one (see `critical_temperature_observed`).
-        // Inside the bracket only the candidate soft at its lower end is followed.
+        // While stepping down, whether a less symmetric mode went soft first is checked
+        // at every probe (the instability of a less symmetric mode may be confined to a
+        // window of temperatures that a later check would miss); inside the bracket only
+        // the candidate soft at its lower end is followed, and every candidate and full
+        // block is checked once just above the root found.
+        let full_check = *self.phase.borrow() == STEPPING_DOWN;
         let only = self.only.get();
-        for (i, c) in self.candidates.borrow().iter().enumerate() {
+        for (i, c) in self.candidates.borrow_mut().iter_mut().enumerate() {
             if only.is_some_and(|o| o != i) {
                 continue;
             }
-            let v = c.value(&qh);
+            let mut v = c.value(&qh);
+            // The symmetric subspace is an accelerator: when the full H(q) is not positive
+            // definite although the subspace says stable, a less symmetric mode is the
+            // soft one, and this candidate is watched on the full block from now.
+            if full_check && c.projection.is_some() && v > 0.0 && !qh.is_positive_definite(&c.q) {
+                c.projection = None;
+                v = c.value(&qh);
+            }
             // Earlier candidates (points of high symmetry) win ties.
             if v < best - TIE.max(1e-15 * v.abs()) {
                 best = v;
@@ -369,7 +378,7 @@ impl Probe for QProbe<'_, '_> {
     }
 }
 
-/// The first phase of the search (for the observer).
+/// The phase of the search in which every probe checks the full blocks.
 const STEPPING_DOWN: &str = "stepping down";
 
 /// Rounding scale of the eigenvalues of the scaled `H(q)` (entries O(1)): below it the
