@@ -3,6 +3,9 @@
 
 use assert_cmd::Command;
 
+mod with_j;
+pub use with_j::with_j_text;
+
 /// The `rungs` binary, run from the workspace root with progress bars off.
 pub fn rungs() -> Command {
     let mut cmd = Command::new(env!("CARGO_BIN_EXE_rungs"));
@@ -26,26 +29,6 @@ pub fn ok(args: &[&str]) -> String {
         assert!(!stdout.contains(bad), "{args:?} printed `{bad}`: {stdout}");
     }
     stdout
-}
-
-/// A lattice file's text with its couplings `J: 1.0` replaced by `J: j` and its
-/// `reference:` block dropped (the reference is the ferromagnet's).
-pub fn with_j_text(text: &str, j: f64) -> String {
-    let mut out = String::new();
-    let mut skip = false;
-    for line in text.lines() {
-        if line.starts_with("reference:") {
-            skip = true;
-            continue;
-        }
-        if skip && line.starts_with("  ") {
-            continue;
-        }
-        skip = false;
-        out.push_str(&line.replace("J: 1.0", &format!("J: {j}")));
-        out.push('\n');
-    }
-    out
 }
 
 /// A shipped lattice written to a temporary file with `J: 1.0` → `J: j` and without its

@@ -851,10 +851,15 @@ impl<'a> Functional<'a> {
                     KernelKind::And if (c ^ d).count_ones().is_multiple_of(2) => scaled[c & d],
                     KernelKind::And => -scaled[c & d],
                 };
-                upper_pairs(&rows, m, |at, v2, c, d| {
-                    let v = entry(c, d);
-                    acc[at] += if v2 { v + v } else { v };
-                });
+                upper_pairs(
+                    &rows,
+                    |r| r.1,
+                    m,
+                    |at, v2, (c, _), (d, _)| {
+                        let v = entry(c, d);
+                        acc[at] += if v2 { v + v } else { v };
+                    },
+                );
             } else {
                 let scaled: Vec<f64> = k.kernel.iter().map(|v| v * k.scale).collect();
                 let entry = |c: usize, d: usize| match k.kind {
@@ -862,10 +867,15 @@ impl<'a> Functional<'a> {
                     KernelKind::And => parity_sign(c ^ d) * scaled[c & d],
                 };
                 let hs = h.as_mut_slice();
-                upper_pairs(&rows, m, |at, v2, c, d| {
-                    let v = entry(c, d);
-                    hs[at] += if v2 { v + v } else { v };
-                });
+                upper_pairs(
+                    &rows,
+                    |r| r.1,
+                    m,
+                    |at, v2, (c, _), (d, _)| {
+                        let v = entry(c, d);
+                        hs[at] += if v2 { v + v } else { v };
+                    },
+                );
             }
         }
         for &(a, b, c) in self.quadratic_terms() {
@@ -1186,20 +1196,24 @@ impl Block {
 
 /// The masks of kernel `k` whose variable is in the block (`pos[var]` its row, or
 /// `usize::MAX`): (mask, row).
-/// Every unordered pair {i ≤ j} of `rows` (mask, block row) once: `visit(index of the
-/// upper-triangle entry (column-major, order m), whether the pair counts twice there
-/// (two different masks of one variable), mask i, mask j)`.
+/// Every unordered pair {i ≤ j} of `rows` once, for a symmetric matrix of order `m`
+/// summed on its upper triangle: `visit(index of the upper-triangle entry (column-major),
+/// whether the pair counts twice there (two different rows of one block row), row i,
+/// row j)`, `row` giving a row's block row.
 #[inline]
-fn upper_pairs(
-    rows: &[(usize, usize)],
+pub(crate) fn upper_pairs<T: Copy>(
+    rows: &[T],
+    row: impl Fn(T) -> usize,
     m: usize,
-    mut visit: impl FnMut(usize, bool, usize, usize),
+    mut visit: impl FnMut(usize, bool, T, T),
 ) {
-    for (i, &(c, rc)) in rows.iter().enumerate() {
-        visit(rc + m * rc, false, c, c);
-        for &(d, rd) in &rows[i + 1..] {
-            let (a, b) = if rc <= rd { (rc, rd) } else { (rd, rc) };
-            visit(a + m * b, a == b, c, d);
+    for (i, &a) in rows.iter().enumerate() {
+        let ra = row(a);
+        visit(ra + m * ra, false, a, a);
+        for &b in &rows[i + 1..] {
+            let rb = row(b);
+            let (lo, hi) = if ra <= rb { (ra, rb) } else { (rb, ra) };
+            visit(lo + m * hi, lo == hi, a, b);
         }
     }
 }

@@ -26,7 +26,7 @@ use rungs_lattice::symmetry::SiteMap;
 use rungs_lattice::{Cell, Cluster, Lattice, Level};
 
 use crate::dd::Dd;
-use crate::functional::{Block, Functional, RegionKernel};
+use crate::functional::{upper_pairs, Block, Functional, RegionKernel};
 use crate::linalg;
 
 /// A wavevector in units of the reciprocal primitive vectors (unused components 0).
@@ -546,16 +546,20 @@ fn hermitian_pairs(
     }
 }
 
-/// The real counterpart of [`hermitian_pairs`].
+/// The real counterpart of [`hermitian_pairs`], on the upper triangle alone (the caller
+/// mirrors it).
 fn symmetric_pairs(rows: &[(usize, usize, f64)], k: &RegionKernel<'_>, h: &mut DMatrix<f64>) {
-    for (i, &(c, rc, pc)) in rows.iter().enumerate() {
-        h[(rc, rc)] += pc * pc * k.entry(c, c);
-        for &(d, rd, pd) in &rows[i + 1..] {
+    let m = h.nrows();
+    let hs = h.as_mut_slice();
+    upper_pairs(
+        rows,
+        |r| r.1,
+        m,
+        |at, twice, (c, _, pc), (d, _, pd)| {
             let v = pc * pd * k.entry(c, d);
-            let (lo, hi) = (rc.min(rd), rc.max(rd));
-            h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
-        }
-    }
+            hs[at] += if twice { 2.0 * v } else { v };
+        },
+    );
 }
 
 /// Add `v` at (r, s) and its conjugate at (s, r), written on the upper triangle only.

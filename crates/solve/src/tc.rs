@@ -482,42 +482,7 @@ pub fn critical_temperature_observed(
     let mut notes = Vec::new();
     for _round in 0..4 {
         *probe.phase.borrow_mut() = STEPPING_DOWN;
-        // A step-down that ends without a bracket (stable to the bottom, or a
-        // disordered state that cannot be followed lower) may have passed a less
-        // symmetric instability that the symmetric subspaces do not see: the full blocks
-        // at the last temperature probed decide, and the search runs again on them.
-        let bracket = step_down(&mut probe, t_start, t_min, rules);
-        if !matches!(
-            bracket,
-            Ok(Bracket::Found { .. }) | Ok(Bracket::Noise { .. })
-        ) {
-            let t_last = probe.last.borrow().0;
-            if t_last.is_finite() {
-                let (fb, xb) = follower.solve(t_last)?;
-                let qb = QHessian::scaled(&fb, lattice, &xb, follower.sector(), false)
-                    .ok_or_else(|| infeasible(&level.name, t_last))?;
-                let hidden: Vec<Candidate> = probe
-                    .candidates
-                    .borrow()
-                    .iter()
-                    .filter(|c| {
-                        c.projection
-                            .as_ref()
-                            .is_some_and(|p| p.len() < qb.block().vars.len())
-                            && !qb.is_positive_definite(&c.q)
-                    })
-                    .map(|c| Candidate {
-                        q: c.q,
-                        projection: None,
-                    })
-                    .collect();
-                if !hidden.is_empty() {
-                    watch_also(&mut probe.candidates.borrow_mut(), hidden, d);
-                    continue;
-                }
-            }
-        }
-        let bracket = bracket?;
+        let bracket = step_down(&mut probe, t_start, t_min, rules)?;
         let (lo, hi, values) = match bracket {
             Bracket::Found { lo, hi, values } => (lo, hi, values),
             Bracket::Stable { down_to } | Bracket::Noise { at: down_to } => {

@@ -5,6 +5,10 @@ use std::path::PathBuf;
 
 use rungs_lattice::{Lattice, Level};
 
+#[path = "../../../tests/common/with_j.rs"]
+mod with_j;
+pub use with_j::with_j_text;
+
 /// A shipped lattice file by stem, e.g. `square`.
 pub fn shipped(stem: &str) -> Lattice {
     let path = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
@@ -34,26 +38,6 @@ pub fn chain(j: f64) -> Lattice {
 /// Exact Tc of the square lattice, 2/ln(1+√2) (Onsager 1944, Phys. Rev. 65, 117).
 pub fn onsager_tc() -> f64 {
     2.0 / (1.0 + 2f64.sqrt()).ln()
-}
-
-/// A lattice file's text with its couplings `J: 1.0` replaced by `J: j` and its
-/// `reference:` block dropped (the reference is the ferromagnet's).
-pub fn with_j_text(text: &str, j: f64) -> String {
-    let mut out = String::new();
-    let mut skip = false;
-    for line in text.lines() {
-        if line.starts_with("reference:") {
-            skip = true;
-            continue;
-        }
-        if skip && line.starts_with("  ") {
-            continue;
-        }
-        skip = false;
-        out.push_str(&line.replace("J: 1.0", &format!("J: {j}")));
-        out.push('\n');
-    }
-    out
 }
 
 /// A shipped lattice file with its couplings `J: 1.0` replaced by `J: j` and no reference.

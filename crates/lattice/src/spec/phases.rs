@@ -48,24 +48,12 @@ pub(crate) fn read_phases(ctx: &Ctx, node: &Node) -> Result<Vec<PhaseRaw>, Latti
         )?;
         let sc = f.required(ctx, "supercell", "supercell: [2, 1]")?;
         let spath = f.path("supercell");
-        let entries = list(
+        let sizes = read::cell_counts(
             ctx,
             sc,
             &spath,
             "a supercell: one whole number of cells per dimension, e.g. [2, 1]",
         )?;
-        let sizes = entries
-            .iter()
-            .enumerate()
-            .map(|(i, e)| {
-                read::integer(
-                    ctx,
-                    e,
-                    &index_path(&spath, i),
-                    "a whole number of cells ≥ 1",
-                )
-            })
-            .collect::<Result<_, _>>()?;
         let sg = f.required(ctx, "signs", "signs: [+1, -1]")?;
         let gpath = f.path("signs");
         let entries = list(

@@ -241,6 +241,21 @@ pub(crate) fn integer(
     }
 }
 
+/// A list of whole numbers of cells (a block's or a supercell's size), one per entry;
+/// `expected` describes the list. Their range is checked by the caller.
+pub(crate) fn cell_counts(
+    ctx: &Ctx,
+    node: &Node,
+    path: &str,
+    expected: &str,
+) -> Result<Vec<Item<i128>>, LatticeError> {
+    list(ctx, node, path, expected)?
+        .iter()
+        .enumerate()
+        .map(|(i, e)| integer(ctx, e, &index_path(path, i), "a whole number of cells ≥ 1"))
+        .collect()
+}
+
 /// A list of finite numbers (a vector or a position), any length.
 pub(crate) fn numbers(
     ctx: &Ctx,

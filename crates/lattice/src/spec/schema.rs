@@ -290,24 +290,12 @@ fn read_levels(ctx: &Ctx, node: &Node) -> Result<Vec<LevelRaw>, LatticeError> {
                 let f = Fields::read(ctx, v, &path, "`block: [n1, n2]`", BLOCK_KEYS)?;
                 let b = f.required(ctx, "block", "block: [2, 2]")?;
                 let bpath = f.path("block");
-                let entries = list(
+                let sizes = read::cell_counts(
                     ctx,
                     b,
                     &bpath,
                     "a block size: one whole number per dimension, e.g. [2, 2]",
                 )?;
-                let sizes = entries
-                    .iter()
-                    .enumerate()
-                    .map(|(i, e)| {
-                        read::integer(
-                            ctx,
-                            e,
-                            &index_path(&bpath, i),
-                            "a whole number of cells ≥ 1",
-                        )
-                    })
-                    .collect::<Result<_, _>>()?;
                 Shapes::Block(Item {
                     value: sizes,
                     loc: loc(b, &bpath),

@@ -87,6 +87,16 @@ struct End {
     boundary: bool,
 }
 
+/// Where one of two meeting branches ends with its order parameter going to zero (the
+/// lower branch's end first): the point of a second-order transition between them.
+fn continuous_end(a_end: &Option<End>, b_end: &Option<End>) -> Option<f64> {
+    [a_end, b_end]
+        .into_iter()
+        .flatten()
+        .find(|e| e.continuous)
+        .map(|e| e.x)
+}
+
 /// The work of one path.
 struct PathWork<'s> {
     setup: &'s PhaseDiagramSetup<'s>,
@@ -700,18 +710,11 @@ impl<'s> PathWork<'s> {
                             }
                         }
                     }
-                } else if a_end.as_ref().is_some_and(|e| e.continuous)
-                    || b_end.as_ref().is_some_and(|e| e.continuous)
-                {
+                } else if let Some(at) = continuous_end(&a_end, &b_end) {
                     // One branch vanishes continuously where the other begins, the
                     // free energies equal within rounding there: second order.
                     used.push((a, 1));
                     used.push((b, 0));
-                    let at = match (&a_end, &b_end) {
-                        (Some(e), _) if e.continuous => e.x,
-                        (_, Some(e)) => e.x,
-                        _ => 0.5 * (a_top + b_bot),
-                    };
                     return self.second_order(runs, a, b, x_lo, x_hi, at);
                 } else if g_lo < 0.0 {
                     // a stays lower until it ends.
@@ -735,16 +738,9 @@ impl<'s> PathWork<'s> {
             }
         }
         // No overlap: a ends before b begins.
-        let continuous = a_end.as_ref().is_some_and(|e| e.continuous)
-            || b_end.as_ref().is_some_and(|e| e.continuous);
-        if continuous {
+        if let Some(at) = continuous_end(&a_end, &b_end) {
             used.push((a, 1));
             used.push((b, 0));
-            let at = match (&a_end, &b_end) {
-                (Some(e), _) if e.continuous => e.x,
-                (_, Some(e)) => e.x,
-                _ => 0.5 * (a_top + b_bot),
-            };
             return self.second_order(runs, a, b, x_lo, x_hi, at);
         }
         let sa = a_end
