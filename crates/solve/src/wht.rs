@@ -8,7 +8,8 @@
 //! the same butterflies in the same order per element) for big clusters in two passes
 //! over memory: first every contiguous block of [`BLOCK`] values is transformed in
 //! cache, then the remaining levels run on column strips (the vector seen as rows of
-//! `BLOCK` values; a strip of 8 columns over all rows fits in L2), blocks and strips
+//! `BLOCK` values; a strip of 256 columns, 2 KiB of each row, keeps the TLB and the
+//! prefetcher busy with long runs instead of one cache line per page), blocks and strips
 //! spread over threads with rayon. With AVX2 present the butterflies are compiled for it
 //! (runtime detection).
 
@@ -17,8 +18,10 @@ use rayon::prelude::*;
 /// Values per block of the first pass (2^13 f64 = 64 KiB).
 pub const BLOCK: usize = 1 << 13;
 
-/// Columns per strip of the second pass (one cache line of f64).
-const STRIP: usize = 8;
+/// Columns per strip of the second pass: 2 KiB of each row. Measured per transform
+/// (two cores): 2^24 values 0.180 s with 8 columns, 0.104 s with 32, 0.071 s with 256;
+/// 2^25 values 0.26 s with 32, 0.158 s with 256, 0.21 s with 2048.
+const STRIP: usize = 256;
 
 /// Transform `f` (length a power of two) in place.
 pub fn wht(f: &mut [f64]) {

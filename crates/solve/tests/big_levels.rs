@@ -218,6 +218,11 @@ fn square_block5_lies_between_onsager_and_the_4x4_block() {
     };
     let cp = critical_temperature_compact(&l, &c, options).unwrap();
     let t5 = cp.tc.unwrap();
+    // The measured values go to docs/long-validations.md.
+    eprintln!(
+        "5×5 block: Tc = {t5:.10}, χ̄ = {:?}, {:.0} s",
+        cp.amplitude, cp.seconds
+    );
     assert!(onsager_tc() < t5 && t5 < BLOCK4_TC, "{t5}");
     assert!(cp.amplitude.unwrap() > 7.5);
 }

@@ -10,6 +10,20 @@
 //! H_kk = T Σ_r a_r 4^-n Σ_{c,d ∈ S_k(r)} (W (1/p_r))[c ⊕ d]   (S_k(r): masks of orbit k)
 //! ```
 //!
+//! **Spin-flip symmetry.** Where every odd correlation is zero (the paramagnet at
+//! h = 0, the state of every Tc probe), `p_r(σ) = p_r(−σ)` and each transform is done at
+//! half length: with `half = 2^(n−1)` and the top site's bit folded,
+//!
+//! ```text
+//! (W f)[s] = (W_{n−1} (f_low + f_high))[s]            for s < half (the other half
+//!                                                     follows from p(σ) = p(−σ))
+//! (W z)[c] = 2 (W_{n−1} z_low)[c mod half]            for z(−σ) = ±z(σ) and |c| of
+//!                                                     the matching parity, else 0
+//! ```
+//!
+//! so F, ∇F, H·v (one parity at a time: H is block diagonal there), M⁻¹·v and diag H
+//! cost half the transforms and half the memory traffic of the general path.
+//!
 //! Nothing of size (variables)² exists: memory is a few vectors of 2^n per region (the
 //! masks' orbits, the masks grouped by orbit, 1/p at the current point, one scratch).
 //! Scatter `P_r v` reads v at random, gather `P_rᵀ w` sums each orbit's masks: both are
@@ -79,6 +93,13 @@ pub struct Model<'a> {
     /// `1/√(D_k h_k)` of the preconditioner (see [`Model::precondition`]).
     pre_scale: Vec<f64>,
     scratch: Vec<f64>,
+    /// Whether each orbit variable is odd (an odd number of sites).
+    odd: Vec<bool>,
+    /// Whether the last point evaluated is spin-flip symmetric (its odd variables are
+    /// zero): `inv_p` then holds the lower half only and products use half transforms.
+    symmetric: bool,
+    /// Whether the half transforms may be used (off only to test them).
+    fold: bool,
 }
 
 impl<'a> Model<'a> {
@@ -101,6 +122,9 @@ impl<'a> Model<'a> {
             work: sizes.iter().map(|&s| vec![0.0; s]).collect(),
             pre_scale,
             scratch: vec![0.0; n],
+            odd: (0..n).map(|k| level.is_odd(k)).collect(),
+            symmetric: false,
+            fold: true,
         }
     }
 
@@ -174,20 +198,50 @@ impl<'a> Model<'a> {
             g.iter_mut().for_each(|v| *v = 0.0);
         }
         let need_gradient = grad.is_some() || grad_s.is_some();
+        let symmetric = self.is_symmetric(x);
+        self.symmetric = symmetric;
         let mut entropy = 0.0;
         for (r, region) in self.level.regions.iter().enumerate() {
             let size = region.vars.len();
+            let scale = 1.0 / size as f64;
+            let a = region.coefficient as f64;
+            if symmetric {
+                // Half transforms: p on the lower half, each value twice in the sum.
+                let half = size / 2;
+                let w = &mut self.work[r][..half];
+                fold(&region.vars, x, 1.0, &self.odd, None, w);
+                wht_fast(w);
+                let s = probabilities(w, &mut self.inv_p[r][..half], scale)?;
+                entropy += a * 2.0 * s;
+                if !need_gradient {
+                    continue;
+                }
+                wht_fast(w);
+                // (W ln p)[c] = 2 (W_{n−1} ln p_low)[c mod half], even c only.
+                if let Some(g) = grad.as_deref_mut() {
+                    gather_folded(
+                        &self.members[r],
+                        w,
+                        2.0 * self.t * a * scale,
+                        &self.odd,
+                        false,
+                        g,
+                    );
+                }
+                if let Some(g) = grad_s.as_deref_mut() {
+                    gather_folded(&self.members[r], w, -2.0 * a * scale, &self.odd, false, g);
+                }
+                continue;
+            }
             let w = &mut self.work[r];
             scatter(&region.vars, x, 1.0, w);
             wht_fast(w);
-            let scale = 1.0 / size as f64;
             let s = probabilities(w, &mut self.inv_p[r], scale)?;
-            entropy += region.coefficient as f64 * s;
+            entropy += a * s;
             if !need_gradient {
                 continue;
             }
             wht_fast(w);
-            let a = region.coefficient as f64;
             // ∂S_r/∂ξ_c = −2^-n (W ln p)[c]
             if let Some(g) = grad.as_deref_mut() {
                 gather(&self.members[r], w, self.t * a * scale, g);
@@ -210,14 +264,28 @@ impl<'a> Model<'a> {
     /// `out = H v` at the last feasible point evaluated.
     pub fn hessian_vector(&mut self, v: &[f64], out: &mut [f64]) {
         out.iter_mut().for_each(|o| *o = 0.0);
+        let parities = self.parities(v);
         for (r, region) in self.level.regions.iter().enumerate() {
             let size = region.vars.len();
+            let f = self.t * region.coefficient as f64 / (size as f64 * size as f64);
+            if self.symmetric {
+                // H is block diagonal in parity here: each parity by half transforms.
+                let half = size / 2;
+                for &odd in &parities {
+                    let w = &mut self.work[r][..half];
+                    fold(&region.vars, v, 0.0, &self.odd, Some(odd), w);
+                    wht_fast(w);
+                    multiply(w, &self.inv_p[r][..half]);
+                    wht_fast(w);
+                    gather_folded(&self.members[r], w, 2.0 * f, &self.odd, odd, out);
+                }
+                continue;
+            }
             let w = &mut self.work[r];
             scatter(&region.vars, v, 0.0, w);
             wht_fast(w);
             multiply(w, &self.inv_p[r]);
             wht_fast(w);
-            let f = self.t * region.coefficient as f64 / (size as f64 * size as f64);
             gather(&self.members[r], w, f, out);
         }
         for b in &self.level.bond_terms {
@@ -230,24 +298,46 @@ impl<'a> Model<'a> {
 
     /// `out = M⁻¹ v`, an approximate inverse of H at the last feasible point evaluated:
     /// the exact inverse of the maximal clusters' own terms in mask space,
-    /// `(4^-n W diag(1/p) W)⁻¹ = W diag(p) W`, carried to orbits and rescaled so that
-    /// it is exact for the uncorrelated state (where H = T diag(h_k), h_k = Σ_r a_r
-    /// |S_k(r)|):
+    /// `(4^-n W diag(1/p) W)⁻¹ = W diag(p) W`, carried to orbits by the pseudo-inverse
+    /// of the map P from orbits to masks (`(PᵀP)⁻¹ = diag(1/D_k)`):
     ///
     /// ```text
-    /// M⁻¹ = T⁻¹ G Σ_{r maximal} P_rᵀ W diag(p_r) W P_r G,   G = diag(1/√(D_k h_k))
+    /// M⁻¹ = T⁻¹ G Σ_{r maximal} P_rᵀ W diag(p_r) W P_r G,   G = diag(1/D_k)
     /// ```
     ///
-    /// with `D_k = Σ_{r maximal} |S_k(r)|`. Symmetric positive definite; it absorbs the
-    /// spread of 1/p over many decades that makes H ill-conditioned for big clusters.
+    /// with `D_k = Σ_{r maximal} |S_k(r)|` (masks of orbit k in the maximal regions).
+    /// Symmetric positive definite; it absorbs the spread of 1/p over many decades that
+    /// makes H ill-conditioned for big clusters. The sub-regions' terms are left out.
+    /// An earlier scale, `1/√(D_k h_k)` with the Kikuchi count `h_k = Σ_r a_r |S_k(r)|`,
+    /// made M exact for the uncorrelated state but spread the spectrum of M⁻¹H near Tc
+    /// (4×4 block, even sector at T = 2.33: [0.013, 1.7·10⁴] against [0.033, 359] with
+    /// 1/D_k) and cost twice the products per Tc probe (docs/benchmarks.md).
     pub fn precondition(&mut self, v: &[f64], out: &mut [f64]) {
         out.iter_mut().for_each(|o| *o = 0.0);
         let z = &mut self.scratch;
         z.iter_mut()
             .zip(v.iter().zip(&self.pre_scale))
             .for_each(|(z, (v, g))| *z = v * g);
+        let parities = if self.symmetric {
+            self.parities(v)
+        } else {
+            Vec::new()
+        };
+        let z = &self.scratch;
         for (r, region) in self.level.regions.iter().enumerate() {
             if !region.maximal {
+                continue;
+            }
+            if self.symmetric {
+                let half = region.vars.len() / 2;
+                for &odd in &parities {
+                    let w = &mut self.work[r][..half];
+                    fold(&region.vars, z, 0.0, &self.odd, Some(odd), w);
+                    wht_fast(w);
+                    divide(w, &self.inv_p[r][..half]);
+                    wht_fast(w);
+                    gather_folded(&self.members[r], w, 2.0, &self.odd, odd, out);
+                }
                 continue;
             }
             let w = &mut self.work[r];
@@ -269,10 +359,16 @@ impl<'a> Model<'a> {
         let mut d = vec![0.0; n];
         for (r, region) in self.level.regions.iter().enumerate() {
             let size = region.vars.len();
-            let w = &mut self.work[r];
-            w.copy_from_slice(&self.inv_p[r]);
+            // Symmetric: W(1/p)[e] = 2 (W_{n−1} (1/p)_low)[e mod half] (e = c ⊕ d even).
+            let (len, fold_mask, twice) = if self.symmetric {
+                (size / 2, (size / 2 - 1) as u32, 2.0)
+            } else {
+                (size, u32::MAX, 1.0)
+            };
+            let w = &mut self.work[r][..len];
+            w.copy_from_slice(&self.inv_p[r][..len]);
             wht_fast(w);
-            let f = self.t * region.coefficient as f64 / (size as f64 * size as f64);
+            let f = twice * self.t * region.coefficient as f64 / (size as f64 * size as f64);
             let members = &self.members[r];
             let w = &*w;
             let one = |k: usize| -> f64 {
@@ -280,7 +376,7 @@ impl<'a> Model<'a> {
                 let mut s = 0.0;
                 for &c in m {
                     for &e in m {
-                        s += w[(c ^ e) as usize];
+                        s += w[((c ^ e) & fold_mask) as usize];
                     }
                 }
                 f * s
@@ -303,14 +399,49 @@ impl<'a> Model<'a> {
         d
     }
 
+    /// Whether every odd variable of `x` is zero (then `p(σ) = p(−σ)` in every region).
+    fn is_symmetric(&self, x: &[f64]) -> bool {
+        self.fold && x.iter().zip(&self.odd).all(|(v, &o)| !o || *v == 0.0)
+    }
+
+    /// The parities (odd: `true`) with a non-zero entry in `v`.
+    fn parities(&self, v: &[f64]) -> Vec<bool> {
+        let (mut even, mut odd) = (false, false);
+        for (x, &o) in v.iter().zip(&self.odd) {
+            if *x != 0.0 {
+                if o {
+                    odd = true;
+                } else {
+                    even = true;
+                }
+            }
+            if even && odd {
+                break;
+            }
+        }
+        [(even, false), (odd, true)]
+            .into_iter()
+            .filter_map(|(present, o)| present.then_some(o))
+            .collect()
+    }
+
     /// The smallest cluster probability at `x` (negative or zero: infeasible).
     pub fn min_probability(&mut self, x: &[f64]) -> f64 {
         let mut low = f64::INFINITY;
+        let symmetric = self.is_symmetric(x);
         for (r, region) in self.level.regions.iter().enumerate() {
-            let w = &mut self.work[r];
-            scatter(&region.vars, x, 1.0, w);
+            let size = region.vars.len();
+            let scale = 1.0 / size as f64;
+            let w = if symmetric {
+                let w = &mut self.work[r][..size / 2];
+                fold(&region.vars, x, 1.0, &self.odd, None, w);
+                w
+            } else {
+                let w = &mut self.work[r][..];
+                scatter(&region.vars, x, 1.0, w);
+                w
+            };
             wht_fast(w);
-            let scale = 1.0 / w.len() as f64;
             let m = if w.len() >= PARALLEL {
                 w.par_iter().copied().reduce(|| f64::INFINITY, f64::min)
             } else {
@@ -332,6 +463,66 @@ fn scatter(vars: &[u32], x: &[f64], empty: f64, w: &mut [f64]) {
     } else {
         for (s, &v) in w.iter_mut().zip(vars) {
             *s = if v == u32::MAX { empty } else { x[v as usize] };
+        }
+    }
+}
+
+/// The folded scatter of the spin-flip-symmetric path: `w[c] = f[c] + f[c + half]`
+/// for `c < half = w.len()`, with `f[c] = x[vars[c]]` (`empty` at c = 0) restricted to
+/// the orbits of parity `parity` when given.
+fn fold(vars: &[u32], x: &[f64], empty: f64, odd: &[bool], parity: Option<bool>, w: &mut [f64]) {
+    let half = w.len();
+    let val = |c: usize| -> f64 {
+        let v = vars[c];
+        if v == u32::MAX {
+            return empty;
+        }
+        match parity {
+            Some(p) if odd[v as usize] != p => 0.0,
+            _ => x[v as usize],
+        }
+    };
+    if half >= PARALLEL {
+        w.par_iter_mut()
+            .enumerate()
+            .with_min_len(4096)
+            .for_each(|(c, s)| *s = val(c) + val(c + half));
+    } else {
+        for (c, s) in w.iter_mut().enumerate() {
+            *s = val(c) + val(c + half);
+        }
+    }
+}
+
+/// The gather of the spin-flip-symmetric path: `out[k] += scale Σ_{c ∈ S_k}
+/// w[c mod half]` for the orbits k of parity `parity` (`half = w.len()`).
+fn gather_folded(
+    members: &Members,
+    w: &[f64],
+    scale: f64,
+    odd: &[bool],
+    parity: bool,
+    out: &mut [f64],
+) {
+    let mask = w.len() - 1;
+    let one = |k: usize| -> f64 {
+        members
+            .of(k)
+            .iter()
+            .map(|&c| w[c as usize & mask])
+            .sum::<f64>()
+    };
+    if w.len() >= PARALLEL / 2 {
+        out.par_iter_mut()
+            .enumerate()
+            .with_min_len(1024)
+            .filter(|(k, _)| odd[*k] == parity)
+            .for_each(|(k, o)| *o += scale * one(k));
+    } else {
+        for (k, o) in out.iter_mut().enumerate() {
+            if odd[k] == parity {
+                *o += scale * one(k);
+            }
         }
     }
 }
@@ -363,26 +554,22 @@ fn divide(w: &mut [f64], q: &[f64]) {
     }
 }
 
-/// `1/√(D_k h_k)` per orbit (see [`Model::precondition`]); `1/D_k` where the Kikuchi
-/// count `h_k` is not positive.
+/// `1/D_k` per orbit (see [`Model::precondition`]); 1 for an orbit in no maximal
+/// region.
 fn preconditioner_scale(level: &CompactLevel, members: &[Members]) -> Vec<f64> {
     (0..level.len())
         .map(|k| {
-            let mut d = 0.0;
-            let mut h = 0.0;
-            for (region, m) in level.regions.iter().zip(members) {
-                let count = (m.offsets[k + 1] - m.offsets[k]) as f64;
-                h += region.coefficient as f64 * count;
-                if region.maximal {
-                    d += count;
-                }
-            }
-            if d <= 0.0 {
-                1.0
-            } else if h > 0.0 {
-                1.0 / (d * h).sqrt()
-            } else {
+            let d: f64 = level
+                .regions
+                .iter()
+                .zip(members)
+                .filter(|(region, _)| region.maximal)
+                .map(|(_, m)| (m.offsets[k + 1] - m.offsets[k]) as f64)
+                .sum();
+            if d > 0.0 {
                 1.0 / d
+            } else {
+                1.0
             }
         })
         .collect()
@@ -435,4 +622,86 @@ fn probabilities(w: &mut [f64], inv_p: &mut [f64], scale: f64) -> Option<f64> {
         .iter()
         .fold((0.0, true), |x, y| (x.0 + y.0, x.1 && y.1));
     ok.then_some(s)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use rungs_lattice::Lattice;
+
+    fn square_block(n: usize) -> CompactLevel {
+        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/../../lattices/square.yaml");
+        let name = format!("block{n}x{n}");
+        let lattice = Lattice::from_file(std::path::Path::new(path))
+            .and_then(|l| l.with_block_level(&name, [n, n, 1]))
+            .expect("the shipped square lattice");
+        CompactLevel::build(&lattice, &name).expect("a compact square block")
+    }
+
+    /// A spin-flip-symmetric point with strong even correlations: the paramagnet at
+    /// T = 2.4 (3×3 block), by Newton from the uncorrelated state.
+    fn paramagnet(level: &CompactLevel) -> Vec<f64> {
+        let mut model = Model::new(level, 2.4, 0.0);
+        let even: Vec<usize> = (0..level.len()).filter(|&k| !level.is_odd(k)).collect();
+        let x0 = crate::big::newton::product_state(&model, 0.0);
+        crate::big::newton::minimise(&mut model, x0, &even, Default::default())
+            .expect("the paramagnet")
+            .x
+    }
+
+    fn max_diff(a: &[f64], b: &[f64]) -> f64 {
+        a.iter()
+            .zip(b)
+            .map(|(x, y)| (x - y).abs())
+            .fold(0.0, f64::max)
+    }
+
+    #[test]
+    fn half_transforms_give_the_general_path() {
+        // Both paths compute the same sums (W² = 2^n folded by p(σ) = p(−σ)), so they
+        // agree to rounding.
+        let level = square_block(3);
+        let x = paramagnet(&level);
+        let n = level.len();
+        let v: Vec<f64> = (0..n).map(|k| (0.7 * k as f64).sin()).collect();
+        let odd_only: Vec<f64> = (0..n)
+            .map(|k| if level.is_odd(k) { v[k] } else { 0.0 })
+            .collect();
+        let mut results = Vec::new();
+        for fold in [true, false] {
+            let mut model = Model::new(&level, 2.4, 0.0);
+            model.fold = fold;
+            let mut g = vec![0.0; n];
+            let mut gs = vec![0.0; n];
+            let ev = model
+                .evaluate(&x, Some(&mut g), Some(&mut gs))
+                .expect("a feasible point");
+            assert_eq!(model.symmetric, fold);
+            let (mut hv, mut ho, mut pv) = (vec![0.0; n], vec![0.0; n], vec![0.0; n]);
+            model.hessian_vector(&v, &mut hv);
+            model.hessian_vector(&odd_only, &mut ho);
+            model.precondition(&v, &mut pv);
+            let d = model.diagonal();
+            let low = model.min_probability(&x);
+            results.push((ev.free_energy, ev.entropy, g, gs, hv, ho, pv, d, low));
+        }
+        let (a, b) = (&results[0], &results[1]);
+        assert!((a.0 - b.0).abs() < 1e-13 && (a.1 - b.1).abs() < 1e-13);
+        for (p, q) in [
+            (&a.2, &b.2),
+            (&a.3, &b.3),
+            (&a.4, &b.4),
+            (&a.5, &b.5),
+            (&a.6, &b.6),
+            (&a.7, &b.7),
+        ] {
+            let scale = q.iter().map(|x| x.abs()).fold(1.0, f64::max);
+            assert!(
+                max_diff(p, q) < 1e-11 * scale,
+                "{} of {scale}",
+                max_diff(p, q)
+            );
+        }
+        assert!((a.8 - b.8).abs() < 1e-15 && a.8 > 0.0);
+    }
 }
