@@ -266,27 +266,9 @@ impl<'a> Model<'a> {
         out.iter_mut().for_each(|o| *o = 0.0);
         let parities = self.parities(v);
         for (r, region) in self.level.regions.iter().enumerate() {
-            let size = region.vars.len();
-            let f = self.t * region.coefficient as f64 / (size as f64 * size as f64);
-            if self.symmetric {
-                // H is block diagonal in parity here: each parity by half transforms.
-                let half = size / 2;
-                for &odd in &parities {
-                    let w = &mut self.work[r][..half];
-                    fold(&region.vars, v, 0.0, &self.odd, Some(odd), w);
-                    wht_fast(w);
-                    multiply(w, &self.inv_p[r][..half]);
-                    wht_fast(w);
-                    gather_folded(&self.members[r], w, 2.0 * f, &self.odd, odd, out);
-                }
-                continue;
-            }
-            let w = &mut self.work[r];
-            scatter(&region.vars, v, 0.0, w);
-            wht_fast(w);
-            multiply(w, &self.inv_p[r]);
-            wht_fast(w);
-            gather(&self.members[r], w, f, out);
+            let size = region.vars.len() as f64;
+            let f = self.t * region.coefficient as f64 / (size * size);
+            self.sandwich(r, v, &parities, multiply, f, out);
         }
         for b in &self.level.bond_terms {
             if let BondTerm::Factorised { a, b, j } = *b {
@@ -314,39 +296,17 @@ impl<'a> Model<'a> {
     /// 1/D_k) and cost twice the products per Tc probe (docs/benchmarks.md).
     pub fn precondition(&mut self, v: &[f64], out: &mut [f64]) {
         out.iter_mut().for_each(|o| *o = 0.0);
-        let z = &mut self.scratch;
+        let mut z = std::mem::take(&mut self.scratch);
         z.iter_mut()
             .zip(v.iter().zip(&self.pre_scale))
             .for_each(|(z, (v, g))| *z = v * g);
-        let parities = if self.symmetric {
-            self.parities(v)
-        } else {
-            Vec::new()
-        };
-        let z = &self.scratch;
+        let parities = self.parities(v);
         for (r, region) in self.level.regions.iter().enumerate() {
-            if !region.maximal {
-                continue;
+            if region.maximal {
+                self.sandwich(r, &z, &parities, divide, 1.0, out);
             }
-            if self.symmetric {
-                let half = region.vars.len() / 2;
-                for &odd in &parities {
-                    let w = &mut self.work[r][..half];
-                    fold(&region.vars, z, 0.0, &self.odd, Some(odd), w);
-                    wht_fast(w);
-                    divide(w, &self.inv_p[r][..half]);
-                    wht_fast(w);
-                    gather_folded(&self.members[r], w, 2.0, &self.odd, odd, out);
-                }
-                continue;
-            }
-            let w = &mut self.work[r];
-            scatter(&region.vars, z, 0.0, w);
-            wht_fast(w);
-            divide(w, &self.inv_p[r]);
-            wht_fast(w);
-            gather(&self.members[r], w, 1.0, out);
         }
+        self.scratch = z;
         let t = self.t;
         out.iter_mut()
             .zip(&self.pre_scale)
@@ -404,8 +364,45 @@ impl<'a> Model<'a> {
         self.fold && x.iter().zip(&self.odd).all(|(v, &o)| !o || *v == 0.0)
     }
 
-    /// The parities (odd: `true`) with a non-zero entry in `v`.
+    /// `out += f P_rᵀ W diag(q) W P_r v` for region r, with `kernel(w, 1/p_r)` applying
+    /// `diag(q)` (multiply: q = 1/p, H·v; divide: q = p, M⁻¹·v). At a spin-flip-symmetric
+    /// point each parity of `parities` by half transforms (module documentation).
+    fn sandwich(
+        &mut self,
+        r: usize,
+        v: &[f64],
+        parities: &[bool],
+        kernel: fn(&mut [f64], &[f64]),
+        f: f64,
+        out: &mut [f64],
+    ) {
+        let vars = &self.level.regions[r].vars;
+        if self.symmetric {
+            let half = vars.len() / 2;
+            for &odd in parities {
+                let w = &mut self.work[r][..half];
+                fold(vars, v, 0.0, &self.odd, Some(odd), w);
+                wht_fast(w);
+                kernel(w, &self.inv_p[r][..half]);
+                wht_fast(w);
+                gather_folded(&self.members[r], w, 2.0 * f, &self.odd, odd, out);
+            }
+            return;
+        }
+        let w = &mut self.work[r];
+        scatter(vars, v, 0.0, w);
+        wht_fast(w);
+        kernel(w, &self.inv_p[r]);
+        wht_fast(w);
+        gather(&self.members[r], w, f, out);
+    }
+
+    /// The parities (odd: `true`) with a non-zero entry in `v`; none asked for (empty)
+    /// unless the point is spin-flip symmetric, where products go parity by parity.
     fn parities(&self, v: &[f64]) -> Vec<bool> {
+        if !self.symmetric {
+            return Vec::new();
+        }
         let (mut even, mut odd) = (false, false);
         for (x, &o) in v.iter().zip(&self.odd) {
             if *x != 0.0 {
