@@ -43,6 +43,13 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         model.hessian_vector(&odd, &mut out);
     }
     let t6 = Instant::now();
+    // A fingerprint of the last product, to compare code paths.
+    let check: f64 = out
+        .iter()
+        .enumerate()
+        .map(|(k, o)| o * (k as f64 + 1.0).sqrt())
+        .sum();
+    println!("fingerprint of H·v on one parity: {check:.15e}");
     println!(
         "{name}: {} orbits ({} translation classes); build {:.2} s, model {:.2} s, F+grad {:.3} s, H·v {:.3} s, M⁻¹·v {:.3} s, H·v on one parity {:.3} s",
         level.len(),

@@ -367,6 +367,28 @@ pub fn tc_levels(
     Ok(rows)
 }
 
+/// Clusters from this many sites up are announced as long work: the 5×5 block (25
+/// sites, 31.5 million variables) takes hours on a laptop (docs/long-validations.md), the
+/// 4×4 block (16 sites) seconds.
+const LONG_SEARCH_SITES: usize = 24;
+
+/// The first stage of a level's search, as shown: a big level says it is solved on
+/// point-group orbits, and one of [`LONG_SEARCH_SITES`] sites or more that it will take
+/// long, so that nobody waits for seconds what takes hours.
+pub fn search_stage(p: &Prepared) -> String {
+    if !p.big {
+        return "Tc search".into();
+    }
+    if p.max_cluster_sites >= LONG_SEARCH_SITES {
+        return format!(
+            "Tc search on point-group orbits ({:.1} million variables, {}-site clusters: expect hours)",
+            p.variables() as f64 / 1e6,
+            p.max_cluster_sites
+        );
+    }
+    "Tc search on point-group orbits".into()
+}
+
 /// [`search`] of level `index`, announced to `observe` (its first stage, every stage of
 /// the search, and its outcome).
 fn observed_search(
@@ -378,11 +400,7 @@ fn observed_search(
     observe: &(dyn Fn(LevelEvent<'_>) + Sync),
 ) -> LevelTc {
     let stage = |stage: &str| observe(LevelEvent::Stage { index, stage });
-    stage(if p.big {
-        "Tc search on point-group orbits"
-    } else {
-        "Tc search"
-    });
+    stage(&search_stage(p));
     let row = search(lattice, p, below, field, &stage);
     observe(LevelEvent::Finished {
         index,

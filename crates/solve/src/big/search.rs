@@ -20,7 +20,15 @@ use crate::error::SolveError;
 use crate::krylov::lobpcg_lowest;
 
 use super::model::Model;
-use super::newton::{minimise, product_state, sector_product, NewtonCgOptions, SectorOps};
+use super::newton::{
+    approach_from_above, minimise, product_state, sector_product, NewtonCgOptions, SectorOps,
+};
+
+/// Clusters from this many sites up start their first paramagnet by
+/// [`approach_from_above`] instead of from the uncorrelated state (measured: the 4×4
+/// block's cold start costs 858 products against 906 approached; see
+/// docs/benchmarks.md for the 5×5 block).
+const APPROACH_SITES: usize = 24;
 
 /// What a probe says about one temperature.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -87,9 +95,9 @@ impl<'a> SymmetricProbe<'a> {
         &self.odd
     }
 
-    /// A warm start at `t`: the two nearest solutions extrapolated linearly (when the
-    /// result is feasible), else the nearest, else the uniform distribution.
-    fn start(&mut self, t: f64) -> Vec<f64> {
+    /// A warm start at `t` (the model set there): the two nearest solutions extrapolated
+    /// linearly (when the result is feasible), else the nearest, else a cold start.
+    fn start(&mut self, t: f64) -> Result<Vec<f64>, SolveError> {
         let mut near: Vec<&(f64, Vec<f64>)> = self.history.iter().collect();
         near.sort_by(|a, b| (a.0 - t).abs().total_cmp(&(b.0 - t).abs()));
         if let [a, b, ..] = near.as_slice() {
@@ -97,14 +105,25 @@ impl<'a> SymmetricProbe<'a> {
                 let s = (t - a.0) / (b.0 - a.0);
                 let x: Vec<f64> = a.1.iter().zip(&b.1).map(|(p, q)| p + s * (q - p)).collect();
                 if self.model.min_probability(&x) > 0.0 {
-                    return x;
+                    return Ok(x);
                 }
             }
         }
         if let Some(a) = near.first() {
-            return a.1.clone();
+            return Ok(a.1.clone());
         }
-        product_state(&self.model, 0.0)
+        self.cold_start()
+    }
+
+    /// A start without solutions nearby: the uncorrelated state, or for clusters of
+    /// [`APPROACH_SITES`] sites and more the approach from high temperature.
+    fn cold_start(&mut self) -> Result<Vec<f64>, SolveError> {
+        if self.model.level().max_cluster_sites < APPROACH_SITES {
+            return Ok(product_state(&self.model, 0.0));
+        }
+        let (x, products) = approach_from_above(&mut self.model, &self.even)?;
+        self.products += products;
+        Ok(x)
     }
 
     /// The paramagnet at `t`; the model is left evaluated there.
@@ -116,12 +135,12 @@ impl<'a> SymmetricProbe<'a> {
             return Ok(x);
         }
         self.model.set(t, 0.0);
-        let x0 = self.start(t);
+        let x0 = self.start(t)?;
         let sol = match minimise(&mut self.model, x0, &self.even, NewtonCgOptions::default()) {
             Ok(s) => s,
-            // A poor extrapolation: start again from the uniform distribution.
+            // A poor extrapolation: start again without it.
             Err(_) => {
-                let x0 = product_state(&self.model, 0.0);
+                let x0 = self.cold_start()?;
                 minimise(&mut self.model, x0, &self.even, NewtonCgOptions::default())?
             }
         };
