@@ -200,6 +200,15 @@ fn square_block4_tc_on_both_big_paths() {
 /// `square_block4_tc_on_both_big_paths`).
 const BLOCK4_TC: f64 = 2.3186947747;
 
+/// The shipped square lattice with its 5×5 block level, and the level's compact form.
+fn square_block5() -> (rungs_lattice::Lattice, CompactLevel) {
+    let l = shipped("square")
+        .with_block_level("block5", [5, 5, 1])
+        .unwrap();
+    let c = CompactLevel::build(&l, "block5").unwrap();
+    (l, c)
+}
+
 /// The 5×5 block: 2^25 states per cluster, 3,956,995 orbit variables. Hours on two
 /// cores with the present preconditioner (see docs/long-validations.md):
 /// `cargo test --release -p rungs-solve --test big_levels -- --ignored square_block5_lies`
@@ -208,10 +217,7 @@ const BLOCK4_TC: f64 = 2.3186947747;
 fn square_block5_lies_between_onsager_and_the_4x4_block() {
     // Onsager (1944), Phys. Rev. 65, 117: Tc = 2/ln(1+√2) bounds the ladder below; the
     // block sequence must be monotone (4×4: BLOCK4_TC, this project's value above).
-    let l = shipped("square")
-        .with_block_level("block5", [5, 5, 1])
-        .unwrap();
-    let c = CompactLevel::build(&l, "block5").unwrap();
+    let (l, c) = square_block5();
     let options = TcOptions {
         start_below: Some(BLOCK4_TC),
         ..TcOptions::default()
@@ -237,10 +243,7 @@ fn square_block5_lies_between_onsager_and_the_4x4_block() {
 fn square_block5_bracketed_by_the_4x4_block_and_onsager() {
     // Onsager (1944), Phys. Rev. 65, 117: Tc = 2/ln(1+√2); BLOCK4_TC: this project's
     // value above (monotone ladder: the 5×5 Tc must lie below it).
-    let l = shipped("square")
-        .with_block_level("block5", [5, 5, 1])
-        .unwrap();
-    let c = CompactLevel::build(&l, "block5").unwrap();
+    let (_, c) = square_block5();
     let mut probe = rungs_solve::big::SymmetricProbe::new(&c);
     let clock = std::time::Instant::now();
     let above = probe.probe(BLOCK4_TC).unwrap();

@@ -179,3 +179,19 @@ pub fn critical_temperature_compact(
         seconds: clock.elapsed().as_secs_f64(),
     })
 }
+
+/// Levels shared by the unit tests of the big-level modules.
+#[cfg(test)]
+pub(crate) mod test_levels {
+    use rungs_lattice::{CompactLevel, Lattice};
+
+    /// The compact n×n block level of the shipped square lattice.
+    pub fn square_block(n: usize) -> CompactLevel {
+        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/../../lattices/square.yaml");
+        let name = format!("block{n}x{n}");
+        let lattice = Lattice::from_file(std::path::Path::new(path))
+            .and_then(|l| l.with_block_level(&name, [n, n, 1]))
+            .expect("the shipped square lattice");
+        CompactLevel::build(&lattice, &name).expect("a compact square block")
+    }
+}

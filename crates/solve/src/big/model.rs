@@ -624,16 +624,7 @@ fn probabilities(w: &mut [f64], inv_p: &mut [f64], scale: f64) -> Option<f64> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use rungs_lattice::Lattice;
-
-    fn square_block(n: usize) -> CompactLevel {
-        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/../../lattices/square.yaml");
-        let name = format!("block{n}x{n}");
-        let lattice = Lattice::from_file(std::path::Path::new(path))
-            .and_then(|l| l.with_block_level(&name, [n, n, 1]))
-            .expect("the shipped square lattice");
-        CompactLevel::build(&lattice, &name).expect("a compact square block")
-    }
+    use crate::big::test_levels::square_block;
 
     /// A spin-flip-symmetric point with strong even correlations: the paramagnet at
     /// T = 2.4 (3×3 block), by Newton from the uncorrelated state.

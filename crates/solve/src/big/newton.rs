@@ -398,16 +398,7 @@ pub fn approach_from_above(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use rungs_lattice::{CompactLevel, Lattice};
-
-    fn square_block(n: usize) -> CompactLevel {
-        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/../../lattices/square.yaml");
-        let name = format!("block{n}x{n}");
-        let lattice = Lattice::from_file(std::path::Path::new(path))
-            .and_then(|l| l.with_block_level(&name, [n, n, 1]))
-            .expect("the shipped square lattice");
-        CompactLevel::build(&lattice, &name).expect("a compact square block")
-    }
+    use crate::big::test_levels::square_block;
 
     #[test]
     fn the_approach_from_above_ends_at_the_cold_starts_paramagnet() {
