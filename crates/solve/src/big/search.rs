@@ -1,7 +1,9 @@
 //! Tc of a big level on point-group orbits, matrix-free.
 //!
 //! The **probe** at T solves the paramagnet in the even sector (truncated Newton, warm
-//! started from the nearest temperatures already solved, linearly extrapolated), then
+//! started from the nearest temperatures already solved, linearly extrapolated; the
+//! first one cold, or for clusters of 24 sites and more approached from high T by
+//! [`approach_from_above`]), then
 //! finds the lowest eigenpair of the odd sector, `H_odd u = λ B u`, by LOBPCG warm
 //! started from the last mode, with B the diagonal of H_odd at the first temperature
 //! probed (fixed, so λ(T) is one smooth function). λ changes sign at Tc, where the
