@@ -373,7 +373,7 @@ pub fn tc_levels(
 const LONG_SEARCH_SITES: usize = 24;
 
 /// The first stage of a level's search, as shown: a big level says it is solved on
-/// point-group orbits, and one of [`LONG_SEARCH_SITES`] sites or more that it will take
+/// point-group orbits, and one of 24 sites or more (`LONG_SEARCH_SITES`) that it will take
 /// long, so that nobody waits for seconds what takes hours.
 pub fn search_stage(p: &Prepared) -> String {
     if !p.big {
