@@ -379,11 +379,16 @@ pub fn search_stage(p: &Prepared) -> String {
     if !p.big {
         return "Tc search".into();
     }
-    if p.max_cluster_sites >= LONG_SEARCH_SITES {
+    big_search_stage(p.max_cluster_sites, p.variables())
+}
+
+/// [`search_stage`] of a big level with clusters of `sites` sites and `variables`
+/// translation classes.
+fn big_search_stage(sites: usize, variables: usize) -> String {
+    if sites >= LONG_SEARCH_SITES {
         return format!(
-            "Tc search on point-group orbits ({:.1} million variables, {}-site clusters: expect hours)",
-            p.variables() as f64 / 1e6,
-            p.max_cluster_sites
+            "Tc search on point-group orbits ({:.1} million variables, {sites}-site clusters: expect hours)",
+            variables as f64 / 1e6,
         );
     }
     "Tc search on point-group orbits".into()
@@ -512,6 +517,19 @@ mod tests {
             events,
             [(0, "done".into()), (1, "done".into()), (2, "done".into())]
         );
+    }
+
+    #[test]
+    fn a_search_of_hours_says_so_before_it_starts() {
+        let lattice = square();
+        let plaquette = prepare(&lattice, "plaquette").unwrap();
+        assert_eq!(search_stage(&plaquette), "Tc search");
+        let block4 = prepare(&lattice.with_block_level("b4", [4, 4, 1]).unwrap(), "b4").unwrap();
+        assert_eq!(search_stage(&block4), "Tc search on point-group orbits");
+        // The 5×5 block: 31,522,816 translation classes (the lattice crate's count).
+        let five = big_search_stage(25, 31_522_816);
+        assert!(five.contains("31.5 million variables"), "{five}");
+        assert!(five.contains("expect hours"), "{five}");
     }
 
     #[test]
