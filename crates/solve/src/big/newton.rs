@@ -335,6 +335,13 @@ pub fn product_state(model: &Model, m: f64) -> Vec<f64> {
         .collect()
 }
 
+/// The linear predictor `x1 + s (x1 − x0)` from two solutions (`s` in units of their
+/// spacing), or `None` where a cluster probability would not be positive there.
+pub fn extrapolate(model: &mut Model, x1: &[f64], x0: &[f64], s: f64) -> Option<Vec<f64>> {
+    let x: Vec<f64> = x1.iter().zip(x0).map(|(p, q)| p + s * (p - q)).collect();
+    (model.min_probability(&x) > 0.0).then_some(x)
+}
+
 /// Temperatures, as multiples of the target, that [`approach_from_above`] solves on its
 /// way down (loosely), before the target itself.
 const APPROACH: [f64; 6] = [4.0, 2.0, 1.4, 1.15, 1.05, 1.015];
@@ -367,13 +374,7 @@ pub fn approach_from_above(
     let predict = |solved: &[(f64, Vec<f64>)], model: &mut Model, beta: f64| -> Vec<f64> {
         match solved {
             [.., (b0, x0), (b1, x1)] => {
-                let s = (beta - b1) / (b1 - b0);
-                let x: Vec<f64> = x1.iter().zip(x0).map(|(p, q)| p + s * (p - q)).collect();
-                if model.min_probability(&x) > 0.0 {
-                    x
-                } else {
-                    x1.clone()
-                }
+                extrapolate(model, x1, x0, (beta - b1) / (b1 - b0)).unwrap_or_else(|| x1.clone())
             }
             [(_, x1)] => x1.clone(),
             [] => product_state(model, 0.0),

@@ -23,7 +23,8 @@ use crate::krylov::lobpcg_lowest;
 
 use super::model::Model;
 use super::newton::{
-    approach_from_above, minimise, product_state, sector_product, NewtonCgOptions, SectorOps,
+    approach_from_above, extrapolate, minimise, product_state, sector_product, NewtonCgOptions,
+    SectorOps,
 };
 
 /// Clusters from this many sites up start their first paramagnet by
@@ -104,9 +105,8 @@ impl<'a> SymmetricProbe<'a> {
         near.sort_by(|a, b| (a.0 - t).abs().total_cmp(&(b.0 - t).abs()));
         if let [a, b, ..] = near.as_slice() {
             if (a.0 - b.0).abs() > 0.0 {
-                let s = (t - a.0) / (b.0 - a.0);
-                let x: Vec<f64> = a.1.iter().zip(&b.1).map(|(p, q)| p + s * (q - p)).collect();
-                if self.model.min_probability(&x) > 0.0 {
+                let s = (t - a.0) / (a.0 - b.0);
+                if let Some(x) = extrapolate(&mut self.model, &a.1, &b.1, s) {
                     return Ok(x);
                 }
             }

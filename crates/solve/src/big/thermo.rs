@@ -23,7 +23,7 @@ use crate::thermo::Observables;
 
 use super::model::Model;
 use super::newton::{
-    inverse_diagonal, minimise, product_state, NewtonCgOptions, SectorOps, Solved,
+    extrapolate, inverse_diagonal, minimise, product_state, NewtonCgOptions, SectorOps, Solved,
 };
 
 /// A solved symmetric state, to warm-start the next point of a sweep.
@@ -251,13 +251,7 @@ impl<'a> SymmetricEngine<'a> {
             let same_side = magnetisation(level, xp) * magnetisation(level, &warm.x) > 0.0
                 || (magnetisation(level, xp) == 0.0 && magnetisation(level, &warm.x) == 0.0);
             if let Some(s) = along.filter(|s| s.abs() <= 2.0 && same_side) {
-                let x: Vec<f64> = warm
-                    .x
-                    .iter()
-                    .zip(xp)
-                    .map(|(w, p)| w + s * (w - p))
-                    .collect();
-                if self.model.min_probability(&x) > 0.0 {
+                if let Some(x) = extrapolate(&mut self.model, &warm.x, xp, s) {
                     return x;
                 }
             }
