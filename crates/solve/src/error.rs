@@ -96,6 +96,14 @@ pub enum SolveError {
         /// What went wrong.
         detail: String,
     },
+    /// A Tc asked in a field of a level that is searched at h = 0 only.
+    #[error("level `{level}` is too large for the dense engine: its Tc is searched at h = 0 only (uniform order on point-group orbits), so no Tc in the field h = {h} is given; a smaller level gives the Néel line or the Tc in a field")]
+    FieldUnsupported {
+        /// Level name.
+        level: String,
+        /// The field asked for.
+        h: f64,
+    },
     /// A field that is not a finite number.
     #[error("field {h} is not a finite number; give a finite h in units of the coupling")]
     BadField {

@@ -289,19 +289,24 @@ pub fn search(
     };
     let outcome = match (&p.level, &p.compact) {
         (_, Some(compact)) => {
-            match crate::big::critical_temperature_compact(lattice, compact, options) {
-                Ok(cp) => TcOutcome::Searched(Box::new(cp)),
-                Err(e) => TcOutcome::Failed(e.to_string()),
-            }
+            // The prepared compact level serves the lattice as given; its
+            // gauge-equivalent lattice (antiferromagnets) gets its own.
+            let mut run = |l: &Lattice| {
+                if std::ptr::eq(l, lattice) {
+                    crate::big::critical_temperature_compact(l, compact, options)
+                } else {
+                    let gauged = crate::big::compact_level(l, &p.name)?;
+                    crate::big::critical_temperature_compact(l, &gauged, options)
+                }
+            };
+            outcome_of(crate::tc::big_level_search(
+                lattice, &p.name, options, &mut run,
+            ))
         }
         (Err(reason), None) => TcOutcome::Refused(reason.clone()),
-        (Ok(level), None) => {
-            match critical_temperature_observed(lattice, level, options, observe) {
-                Ok(cp) => TcOutcome::Searched(Box::new(cp)),
-                Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused(e.to_string()),
-                Err(e) => TcOutcome::Failed(e.to_string()),
-            }
-        }
+        (Ok(level), None) => outcome_of(critical_temperature_observed(
+            lattice, level, options, observe,
+        )),
     };
     LevelTc {
         level: p.name.clone(),
@@ -310,6 +315,18 @@ pub fn search(
         seconds: p.seconds + start.elapsed().as_secs_f64(),
         orbit_reduced: p.big,
         outcome,
+    }
+}
+
+/// A search's result as an outcome: a level the engine cannot search (too large, or
+/// too large to be searched in a field) is refused, any other error a failure.
+fn outcome_of(result: Result<CriticalPoint, SolveError>) -> TcOutcome {
+    match result {
+        Ok(cp) => TcOutcome::Searched(Box::new(cp)),
+        Err(e @ (SolveError::TooLarge { .. } | SolveError::FieldUnsupported { .. })) => {
+            TcOutcome::Refused(e.to_string())
+        }
+        Err(e) => TcOutcome::Failed(e.to_string()),
     }
 }
 

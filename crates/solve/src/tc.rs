@@ -651,18 +651,28 @@ fn big_level(
     level: &Level,
     options: TcOptions,
 ) -> Result<CriticalPoint, SolveError> {
+    big_level_search(lattice, &level.name, options, &mut |l: &Lattice| {
+        crate::big::critical_temperature_big(l, level, options, options.start_below)
+    })
+}
+
+/// The h = 0 Tc of big level `name` (clusters over the dense engine's limits), with
+/// `search` running the uniform-order search on a lattice: `lattice` itself, or its
+/// gauge-equivalent lattice where the mean-field order is a ±1 pattern at a wavevector
+/// with components 0 or 1/2 (see [`big_level`]). In a field there is no such search:
+/// [`SolveError::FieldUnsupported`], before any work.
+pub(crate) fn big_level_search(
+    lattice: &Lattice,
+    name: &str,
+    options: TcOptions,
+    search: &mut dyn FnMut(&Lattice) -> Result<CriticalPoint, SolveError>,
+) -> Result<CriticalPoint, SolveError> {
     let d = lattice.dimension();
     if options.field != 0.0 {
-        let mut cp = crate::big::critical_temperature_big(lattice, level, options, None)?;
-        cp.tc = None;
-        cp.ordering = None;
-        cp.amplitude = None;
-        cp.field = options.field;
-        cp.notes.push(
-            "levels too large for the dense engine are searched at h = 0 only: no Tc in a field is given"
-                .into(),
-        );
-        return Ok(cp);
+        return Err(SolveError::FieldUnsupported {
+            level: name.to_string(),
+            h: options.field,
+        });
     }
     let Some((q, v)) = mean_field_maxima(lattice).first().map(|&(q, _)| {
         let m = crate::qspace::coupling_matrix(lattice, &q);
@@ -672,15 +682,14 @@ fn big_level(
             .unwrap_or(0);
         (q, eig.eigenvectors.column(k).into_owned())
     }) else {
-        return crate::big::critical_temperature_big(lattice, level, options, options.start_below);
+        return search(lattice);
     };
     let ordering = Ordering::new(d, q, v.iter().copied().collect());
     let pattern = ordering.pattern();
     let half = (0..d).all(|k| ordering.fractions[k].1 <= 2) && ordering.exact;
     let unit = pattern.iter().all(|p| (p.abs() - 1.0).abs() < 1e-6);
     if ordering.kind() == ModeKind::Uniform || !(half && unit) {
-        let mut cp =
-            crate::big::critical_temperature_big(lattice, level, options, options.start_below)?;
+        let mut cp = search(lattice)?;
         if ordering.kind() != ModeKind::Uniform {
             cp.notes.push(format!(
                 "levels too large for the dense engine search uniform order only; this lattice's mean-field order is at q = ({}), which cannot be searched at this size: the result says nothing about it",
@@ -707,15 +716,7 @@ fn big_level(
         })
         .collect();
     let gauged = lattice.with_scaled_couplings(&factors);
-    let mut glevel = level.clone();
-    for (bt, f) in glevel.bond_terms.iter_mut().zip(&factors) {
-        match bt {
-            rungs_lattice::BondTerm::Correlated { j, .. }
-            | rungs_lattice::BondTerm::Factorised { j, .. } => *j *= f,
-        }
-    }
-    let mut cp =
-        crate::big::critical_temperature_big(&gauged, &glevel, options, options.start_below)?;
+    let mut cp = search(&gauged)?;
     if cp.tc.is_some() {
         let kind = ordering.kind();
         cp.mode = ordering.site_mode.iter().map(|c| c.re).collect();
@@ -1088,6 +1089,77 @@ mod tests {
             .map(|ij| (0..3).map(|k| m[ij / 3][k] * inv[k][ij % 3]).sum())
             .collect();
         assert_eq!(product, vec![1, 0, 0, 0, 1, 0, 0, 0, 1]);
+    }
+
+    /// The square antiferromagnet (J = −1), nearest neighbours only.
+    fn square_antiferromagnet() -> Lattice {
+        let text = "name: af\ndimension: 2\nvectors: [[1.0, 0.0], [0.0, 1.0]]\n\
+                    basis: [{name: a}]\ncouplings: {J: -1.0}\nbonds:\n\
+                    - {from: a, to: a, cell: [1, 0], coupling: J}\n\
+                    - {from: a, to: a, cell: [0, 1], coupling: J}\n";
+        Lattice::from_yaml_str(text, "af.yaml").expect("a valid lattice")
+    }
+
+    /// A stand-in for the big-level search: its lattice's couplings, and a fixed Tc.
+    fn recording(
+        seen: &RefCell<Vec<f64>>,
+    ) -> impl FnMut(&Lattice) -> Result<CriticalPoint, SolveError> + '_ {
+        move |l: &Lattice| {
+            seen.borrow_mut().extend(l.bonds().iter().map(|b| b.j));
+            Ok(CriticalPoint {
+                level: "big".into(),
+                max_cluster_sites: 25,
+                field: 0.0,
+                tc: Some(2.0),
+                searched_down_to: 2.0,
+                mode: vec![1.0],
+                kind: ModeKind::Uniform,
+                ordering: None,
+                amplitude: None,
+                notes: Vec::new(),
+                seconds: 0.0,
+            })
+        }
+    }
+
+    #[test]
+    fn a_big_antiferromagnet_is_searched_as_its_gauged_ferromagnet() {
+        // Néel order on the square lattice is uniform after s_i → (−1)^(x+y) s_i, which
+        // turns every J = −1 into +1 (common practice: the bipartite gauge).
+        let seen = RefCell::new(Vec::new());
+        let cp = big_level_search(
+            &square_antiferromagnet(),
+            "big",
+            TcOptions::default(),
+            &mut recording(&seen),
+        )
+        .expect("a search");
+        assert_eq!(*seen.borrow(), vec![1.0, 1.0]);
+        assert_eq!(cp.tc, Some(2.0));
+        assert_eq!(cp.kind, ModeKind::Staggered);
+        let ordering = cp.ordering.expect("the Néel ordering");
+        assert_eq!(ordering.wavevector, [0.5, 0.5, 0.0]);
+        assert!(cp.notes.iter().any(|n| n.contains("gauge-equivalent")));
+    }
+
+    #[test]
+    fn a_big_level_in_a_field_is_refused_before_any_search() {
+        let seen = RefCell::new(Vec::new());
+        let options = TcOptions {
+            field: 0.5,
+            ..TcOptions::default()
+        };
+        let result = big_level_search(
+            &square_antiferromagnet(),
+            "big",
+            options,
+            &mut recording(&seen),
+        );
+        assert!(matches!(
+            result,
+            Err(SolveError::FieldUnsupported { h, .. }) if h == 0.5
+        ));
+        assert!(seen.borrow().is_empty(), "no search may run in a field");
     }
 
     #[test]
