@@ -110,7 +110,8 @@ pub fn sweep_level(
     notes.extend(cell.notes.iter().cloned());
     let mut points = Vec::with_capacity(temps.len() * fields.len());
     for &h in fields {
-        let mut follower = PhaseFollower::new(lattice, level, &cell, h, tc);
+        let hint = tc_at(lattice, level, tc, h);
+        let mut follower = PhaseFollower::new(lattice, level, &cell, h, hint);
         for &t in temps {
             points.push(match follower.next(t) {
                 Ok(p) => SweepPoint::Solved(Box::new(p)),
@@ -134,6 +135,24 @@ pub fn sweep_level(
         points,
         notes,
     })
+}
+
+/// Where a path at field `h` may find the ordered phase: the level's Tc at h (the Néel
+/// line of an antiferromagnet, an alloy's order–disorder line), which in a field lies
+/// below the h = 0 value `tc0`. A cold ordered start far below it begins by cooling from
+/// just below it, so `tc0` would start it above the ordered phase. `None` where the
+/// level has no instability at h (a ferromagnet in a field).
+fn tc_at(lattice: &Lattice, level: &Level, tc0: Option<f64>, h: f64) -> Option<f64> {
+    if h == 0.0 || tc0.is_none() {
+        return tc0;
+    }
+    let options = TcOptions {
+        field: h,
+        ..TcOptions::default()
+    };
+    critical_temperature(lattice, level, options)
+        .ok()
+        .and_then(|cp| cp.tc)
 }
 
 /// A level too large for the dense engine, swept matrix-free on point-group orbits

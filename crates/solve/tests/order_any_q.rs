@@ -244,3 +244,45 @@ fn cooling_and_heating_follow_the_branch_they_start_on() {
         assert!((p.order_parameter - q.order_parameter).abs() < 1e-6);
     }
 }
+
+#[test]
+fn a_cold_start_in_a_field_finds_the_antiferromagnets_order() {
+    // In a field the Néel line T_N(h) lies far below T_N(0), so a path that starts cold
+    // below it must look for the ordered phase below T_N(h), not below T_N(0).
+    let anti = with_j("square", -1.0);
+    let (t, h) = (1.0, 3.0);
+    // Two-sublattice mean field of the square antiferromagnet (z = 4, J = −1; common
+    // practice): m_A = tanh((h − 4 m_B)/T), m_B = tanh((h − 4 m_A)/T), solved by damped
+    // iteration from the Néel state.
+    let (mut ma, mut mb) = (1.0f64, -1.0f64);
+    for _ in 0..20_000 {
+        let na = ((h - 4.0 * mb) / t).tanh();
+        let nb = ((h - 4.0 * ma) / t).tanh();
+        ma = 0.5 * (ma + na);
+        mb = 0.5 * (mb + nb);
+    }
+    assert!(
+        ma - mb > 0.5,
+        "the Néel state survives at (T, h) = ({t}, {h})"
+    );
+    let site = &sweep(&anti, "site", &[t], h)[0];
+    assert!(
+        (site.observables.magnetization - 0.5 * (ma + mb)).abs() < 1e-8,
+        "{site:?}"
+    );
+    assert!(
+        (site.order_parameter - 0.5 * (ma - mb)).abs() < 1e-8,
+        "{site:?}"
+    );
+    // The plaquette level: the cold start lands on the branch that cooling from the
+    // disordered side reaches (common practice: one equilibrium state).
+    let cold = &sweep(&anti, "plaquette", &[t], h)[0];
+    let cooled = sweep(&anti, "plaquette", &[2.5, 2.0, 1.6, 1.3, t], h);
+    let last = cooled.last().unwrap();
+    assert!(cold.order_parameter > 0.5, "{cold:?}");
+    assert!(
+        (cold.observables.free_energy - last.observables.free_energy).abs() < 1e-9,
+        "{cold:?} {last:?}"
+    );
+    assert!((cold.order_parameter - last.order_parameter).abs() < 1e-7);
+}
