@@ -108,7 +108,11 @@ fn rung(row: LevelTc) -> RungResult {
             ..base
         },
         TcOutcome::Refused(why) => RungResult {
-            skipped: Some(format!("too large for the engine: {why}")),
+            skipped: Some(if why.contains("searched at h = 0 only") {
+                format!("not searched in a field: {why}")
+            } else {
+                format!("too large for the engine: {why}")
+            }),
             ..base
         },
         TcOutcome::Failed(why) => RungResult {

@@ -28,6 +28,9 @@ fn cell(x: Option<f64>, decimals: usize) -> String {
 fn status(r: &RungResult) -> String {
     match (&r.skipped, r.tc) {
         (Some(why), _) if why.starts_with("too large") => "skipped: too large".into(),
+        (Some(why), _) if why.starts_with("not searched in a field") => {
+            "skipped: h = 0 only".into()
+        }
         (Some(_), _) => "skipped: not computed".into(),
         (None, None) => "no transition".into(),
         (None, Some(_)) => match r.mode {
