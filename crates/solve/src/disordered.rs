@@ -64,6 +64,13 @@ impl Warm {
     }
 }
 
+/// The smallest cluster probability for which [`Disordered::solve_for_stability`] reads
+/// a state in a field in correlations: a probability of a 2^n-state cluster is
+/// `2^-n Σ_c ξ_c χ_c(σ)`, whose rounding is ~10⁻¹⁶·2^(−n/2) absolute, so ~10⁻⁶ relative
+/// or better here up to 16 sites — the precision the h = 0 search has in correlations
+/// at every level (common practice: random rounding errors add as a square root).
+pub const WALSH_VIEW_MIN_PROBABILITY: f64 = 1e-12;
+
 /// A solved disordered state on the reduced level: the reference and the offsets.
 struct Solved {
     reference: Option<Vec<f64>>,
@@ -165,6 +172,33 @@ impl<'a> Disordered<'a> {
         let reference = solved.reference.as_deref().map(expand);
         let f = Functional::with_basis(self.level, t, self.field, self.basis.clone(), reference);
         Ok((f, expand(&solved.x)))
+    }
+
+    /// The disordered state at `t` for its stability matrix: [`Disordered::solve`]'s
+    /// state, in a field carried to the Walsh basis (correlations) when every cluster
+    /// probability is at least [`WALSH_VIEW_MIN_PROBABILITY`]. The inertia of H(q), which
+    /// decides stability, is the same in both bases, but the flip basis a field uses is far
+    /// from orthogonal for big clusters: its diagonally scaled H(q) has every eigenvalue
+    /// compressed toward zero (~10⁻⁸ for 10-site blocks near the Néel line, against
+    /// 10⁻³–10⁻⁶ in correlations), below the rounding and degeneracy tolerances of the Tc
+    /// search. Near-disordered states keep their probabilities' precision in correlations;
+    /// strongly polarised ones (a probability below the threshold) stay in flip
+    /// probabilities.
+    pub fn solve_for_stability(&self, t: f64) -> Result<(Functional<'a>, Vec<f64>), SolveError> {
+        let (f, x) = self.solve(t)?;
+        if matches!(self.basis, Basis::Walsh)
+            || f.smallest_probability(&x)
+                .is_none_or(|p| p < WALSH_VIEW_MIN_PROBABILITY)
+        {
+            return Ok((f, x));
+        }
+        match f.convert(&x, &Basis::Walsh) {
+            Some(y) => Ok((
+                Functional::with_basis(self.level, t, self.field, Basis::Walsh, None),
+                y,
+            )),
+            None => Ok((f, x)),
+        }
     }
 
     /// Reach `t` from the state at `tw` in geometric sub-steps.

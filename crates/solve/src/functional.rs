@@ -990,6 +990,15 @@ impl<'a> Functional<'a> {
         worst
     }
 
+    /// The smallest cluster probability of any active region at x, or `None` if x is
+    /// infeasible.
+    pub fn smallest_probability(&self, x: &[f64]) -> Option<f64> {
+        (0..self.setup.regions.len()).try_fold(f64::INFINITY, |low, ri| {
+            let p = self.region_probabilities(ri, x)?;
+            Some(p.iter().copied().fold(low, f64::min))
+        })
+    }
+
     /// The probabilities of region orbit `ri` (index among the active regions) at x, in
     /// spin labels (bit k set ⇔ spin k is −1), or `None` if infeasible.
     pub fn region_probabilities(&self, ri: usize, x: &[f64]) -> Option<Vec<f64>> {

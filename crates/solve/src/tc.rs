@@ -319,7 +319,7 @@ struct QProbe<'a, 'l> {
 
 impl QProbe<'_, '_> {
     fn evaluate(&self, t: f64) -> Result<(f64, usize, f64), SolveError> {
-        let (f, x) = self.follower.solve(t)?;
+        let (f, x) = self.follower.solve_for_stability(t)?;
         let qh = QHessian::scaled(&f, self.lattice, &x, self.follower.sector(), false)
             .ok_or_else(|| infeasible(&self.name, t))?;
         let _ = &f;
@@ -518,7 +518,7 @@ pub fn critical_temperature_observed(
             crate::report_num(tc)
         ));
         // Refine the wavevector at Tc; check every grid wavevector just above Tc.
-        let (f, x) = follower.solve(tc)?;
+        let (f, x) = follower.solve_for_stability(tc)?;
         let qh = QHessian::scaled(&f, lattice, &x, follower.sector(), false)
             .ok_or_else(|| infeasible(&level.name, tc))?;
         let (_, arg) =
@@ -571,7 +571,7 @@ pub fn critical_temperature_observed(
             });
         }
         let t_check = tc * (1.0 + 1e-6);
-        let (fc, xc) = follower.solve(t_check)?;
+        let (fc, xc) = follower.solve_for_stability(t_check)?;
         let qc = QHessian::scaled(&fc, lattice, &xc, follower.sector(), false)
             .ok_or_else(|| infeasible(&level.name, t_check))?;
         new_q.extend(soft_elsewhere(&qc, &probe.candidates.borrow(), &verify, d));
@@ -840,7 +840,7 @@ fn finish(
     start: Instant,
 ) -> Result<CriticalPoint, SolveError> {
     let d = lattice.dimension();
-    let (f, x) = follower.solve(tc)?;
+    let (f, x) = follower.solve_for_stability(tc)?;
     let sector = follower.sector();
     let qh = QHessian::scaled(&f, lattice, &x, sector.clone(), false)
         .ok_or_else(|| infeasible(&level.name, tc))?;
@@ -862,7 +862,7 @@ fn finish(
     // ẽ = D^{-1/2} e, χ = ẽ† H̃⁻¹ ẽ ≈ |ẽ†ũ|² / λ̃, and ẽ†ũ = e†u for u = D^{-1/2} ũ.
     let delta = 2e-4 * tc;
     let rayleigh = |t: f64| -> Result<f64, SolveError> {
-        let (f, x) = follower.solve(t)?;
+        let (f, x) = follower.solve_for_stability(t)?;
         let qh = QHessian::scaled(&f, lattice, &x, follower.sector(), false)
             .ok_or_else(|| infeasible(&level.name, t))?;
         let m = qh.matrix(&q);
