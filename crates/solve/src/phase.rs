@@ -249,8 +249,13 @@ pub struct PhaseFollower<'c> {
     field: f64,
     disordered: Disordered<'c>,
     last: Option<Last>,
-    /// The level's Tc at this field, where known: where a cold ordered start begins.
+    /// A temperature near where the order sets in (a sweep: the level's Tc at h = 0),
+    /// where known: below about it an ordered phase may coexist with the disordered one
+    /// (first points compare both).
     tc_hint: Option<f64>,
+    /// Where a cold ordered start far below the order begins (the level's Tc at this
+    /// field when known, else `tc_hint`): see [`PhaseFollower::cold_start_below`].
+    cold_hint: Option<f64>,
     /// The lowest temperature the ordered branch was followed to, when it could not be
     /// followed further (double precision exhausted), with the reason.
     floor: Option<(f64, ())>,
@@ -272,8 +277,19 @@ impl<'c> PhaseFollower<'c> {
             disordered: Disordered::new(primitive_lattice, primitive, field),
             last: None,
             tc_hint,
+            cold_hint: tc_hint,
             floor: None,
         }
+    }
+
+    /// Cold ordered starts far below the order begin just below `tc` (the level's Tc at
+    /// this field, which a field can lower far below the h = 0 value: a start at 0.8 Tc(0)
+    /// would lie above the ordered region and find nothing). `None` keeps the h = 0 Tc.
+    pub fn cold_start_below(mut self, tc: Option<f64>) -> PhaseFollower<'c> {
+        if tc.is_some() {
+            self.cold_hint = tc;
+        }
+        self
     }
 
     /// The equilibrium at `t`, continuing the branch of the point before.
@@ -703,7 +719,7 @@ impl<'c> PhaseFollower<'c> {
         let mut best: Option<(Vec<f64>, Vec<f64>, PhasePoint)> = None;
         // Far below Tc a product state is a poor start (its flip probabilities are off by
         // tens of decades): continuation from near Tc is faster and surer.
-        let far_below = self.tc_hint.is_some_and(|tc| t < 0.5 * tc);
+        let far_below = self.cold_hint.is_some_and(|tc| t < 0.5 * tc);
         let amplitudes: &[f64] = if far_below {
             &[]
         } else {
@@ -738,7 +754,7 @@ impl<'c> PhaseFollower<'c> {
             }
         }
         if best.is_none() {
-            if let Some(tc) = self.tc_hint.filter(|&tc| t < 0.8 * tc) {
+            if let Some(tc) = self.cold_hint.filter(|&tc| t < 0.8 * tc) {
                 let _ = &f;
                 // Cold start far below Tc: start near Tc and cool down to t.
                 let t0 = 0.8 * tc;
@@ -804,6 +820,7 @@ impl<'c> PhaseFollower<'c> {
             disordered: self.disordered.at_field(field),
             last: None,
             tc_hint: self.tc_hint,
+            cold_hint: self.cold_hint,
             floor: None,
         }
     }

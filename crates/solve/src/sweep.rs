@@ -110,8 +110,8 @@ pub fn sweep_level(
     notes.extend(cell.notes.iter().cloned());
     let mut points = Vec::with_capacity(temps.len() * fields.len());
     for &h in fields {
-        let hint = tc_at(lattice, level, tc, h);
-        let mut follower = PhaseFollower::new(lattice, level, &cell, h, hint);
+        let mut follower = PhaseFollower::new(lattice, level, &cell, h, tc)
+            .cold_start_below(tc_at(lattice, level, tc, h));
         for &t in temps {
             points.push(match follower.next(t) {
                 Ok(p) => SweepPoint::Solved(Box::new(p)),
@@ -141,7 +141,8 @@ pub fn sweep_level(
 /// line of an antiferromagnet, an alloy's order–disorder line), which in a field lies
 /// below the h = 0 value `tc0`. A cold ordered start far below it begins by cooling from
 /// just below it, so `tc0` would start it above the ordered phase. `None` where the
-/// level has no instability at h (a ferromagnet in a field).
+/// level has no instability at h (a ferromagnet in a field, or order that sets in only
+/// by a first-order transition): the follower then keeps `tc0`.
 fn tc_at(lattice: &Lattice, level: &Level, tc0: Option<f64>, h: f64) -> Option<f64> {
     if h == 0.0 || tc0.is_none() {
         return tc0;
