@@ -186,19 +186,27 @@ impl<'a> Disordered<'a> {
     /// probabilities.
     pub fn solve_for_stability(&self, t: f64) -> Result<(Functional<'a>, Vec<f64>), SolveError> {
         let (f, x) = self.solve(t)?;
+        Ok(self.in_correlations(&f, &x).unwrap_or((f, x)))
+    }
+
+    /// A state `x` of functional `f` (as [`Disordered::solve`] returns them) in the
+    /// Walsh basis, for its stability matrix (see [`Disordered::solve_for_stability`]);
+    /// `None` where it is better kept as it is (h = 0, where it already is in
+    /// correlations, or a probability below [`WALSH_VIEW_MIN_PROBABILITY`]).
+    pub fn in_correlations(
+        &self,
+        f: &Functional<'a>,
+        x: &[f64],
+    ) -> Option<(Functional<'a>, Vec<f64>)> {
         if matches!(self.basis, Basis::Walsh)
-            || f.smallest_probability(&x)
-                .is_none_or(|p| p < WALSH_VIEW_MIN_PROBABILITY)
+            || f.smallest_probability(x)? < WALSH_VIEW_MIN_PROBABILITY
         {
-            return Ok((f, x));
+            return None;
         }
-        match f.convert(&x, &Basis::Walsh) {
-            Some(y) => Ok((
-                Functional::with_basis(self.level, t, self.field, Basis::Walsh, None),
-                y,
-            )),
-            None => Ok((f, x)),
-        }
+        let y = f.convert(x, &Basis::Walsh)?;
+        let walsh =
+            Functional::with_basis(self.level, f.temperature(), self.field, Basis::Walsh, None);
+        Some((walsh, y))
     }
 
     /// Reach `t` from the state at `tw` in geometric sub-steps.

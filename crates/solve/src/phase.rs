@@ -400,7 +400,11 @@ impl<'c> PhaseFollower<'c> {
     fn disordered_state(&mut self, t: f64) -> Result<DisorderedState<'c>, SolveError> {
         let (f, x) = self.disordered.solve(t)?;
         let sector = self.disordered.sector();
-        let qh = QHessian::scaled(&f, self.primitive_lattice, &x, sector, f.is_precise())
+        // Stability in correlations where the field's flip basis would press the scaled
+        // spectrum below its rounding (`Disordered::solve_for_stability`).
+        let view = self.disordered.in_correlations(&f, &x);
+        let (fq, xq) = view.as_ref().map_or((&f, &x[..]), |(g, y)| (g, &y[..]));
+        let qh = QHessian::scaled(fq, self.primitive_lattice, xq, sector, fq.is_precise())
             .ok_or_else(|| SolveError::InfeasibleStart {
                 level: self.cell.level.name.clone(),
                 t,
