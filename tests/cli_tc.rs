@@ -361,7 +361,6 @@ fn square_3x6(dir: &std::path::Path, j: f64) -> String {
 fn a_level_over_16_sites_in_a_field_is_refused_at_once() {
     let dir = tempfile::tempdir().unwrap();
     let path = square_3x6(dir.path(), -1.0);
-    let clock = std::time::Instant::now();
     let doc = json(&[
         "tc",
         &path,
@@ -372,8 +371,8 @@ fn a_level_over_16_sites_in_a_field_is_refused_at_once() {
         "--format",
         "json",
     ]);
-    // Refused before any search (the h = 0 search alone takes minutes).
-    assert!(clock.elapsed().as_secs_f64() < 20.0);
+    // That no search runs first is shown without a clock by the unit test
+    // `a_big_level_in_a_field_is_refused_before_any_search` (crates/solve/src/tc.rs).
     let big = level(&doc, "block36");
     assert!(big["tc"].is_null(), "{big}");
     let note = big["note"].as_str().unwrap();
