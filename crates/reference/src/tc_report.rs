@@ -251,8 +251,8 @@ fn row(computed: LevelTc, d: usize, reference: Option<&Reference>) -> TcRow {
 /// footer.
 fn row_note(row: &LevelTc, dimension: usize, brief: bool) -> Option<String> {
     match &row.outcome {
-        TcOutcome::Refused(_) if brief => Some("not computed (see notes)".into()),
-        TcOutcome::Refused(reason) => Some(format!("not computed: {reason}")),
+        TcOutcome::Refused { .. } if brief => Some("not computed (see notes)".into()),
+        TcOutcome::Refused { why: reason, .. } => Some(format!("not computed: {reason}")),
         TcOutcome::Failed(_) if brief => Some("search failed (see notes)".into()),
         TcOutcome::Failed(reason) => Some(format!("search failed: {reason}")),
         TcOutcome::Searched(cp) => {

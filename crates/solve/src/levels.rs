@@ -77,10 +77,24 @@ pub fn no_progress(_: LevelEvent<'_>) {}
 pub enum TcOutcome {
     /// The search ran; the critical point's `tc` is `None` when no transition was found.
     Searched(Box<CriticalPoint>),
-    /// The engine refused the level (too large); the reason says why.
-    Refused(String),
+    /// The engine refused the level; `kind` says which limit, `why` says it in words.
+    Refused {
+        /// The limit met.
+        kind: Refusal,
+        /// The engine's reason, for the reader.
+        why: String,
+    },
     /// The search failed (no convergence); the reason says where.
     Failed(String),
+}
+
+/// Why the engine refused a level.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Refusal {
+    /// The level is too large to be built or searched.
+    TooLarge,
+    /// The level is searched at h = 0 only and a Tc in a field was asked for.
+    FieldUnsupported,
 }
 
 /// One level's critical point, or why there is none.
@@ -113,7 +127,7 @@ impl LevelTc {
     pub fn critical(&self) -> Option<&CriticalPoint> {
         match &self.outcome {
             TcOutcome::Searched(cp) => Some(cp),
-            TcOutcome::Refused(_) | TcOutcome::Failed(_) => None,
+            TcOutcome::Refused { .. } | TcOutcome::Failed(_) => None,
         }
     }
 
@@ -121,14 +135,14 @@ impl LevelTc {
     pub fn failure(&self) -> Option<&str> {
         match &self.outcome {
             TcOutcome::Searched(_) => None,
-            TcOutcome::Refused(why) | TcOutcome::Failed(why) => Some(why),
+            TcOutcome::Refused { why, .. } | TcOutcome::Failed(why) => Some(why),
         }
     }
 
     /// One word for a progress line: `done`, `no transition`, `skipped` or `failed`.
     pub fn outcome_word(&self) -> &'static str {
         match &self.outcome {
-            TcOutcome::Refused(_) => "skipped",
+            TcOutcome::Refused { .. } => "skipped",
             TcOutcome::Failed(_) => "failed",
             TcOutcome::Searched(cp) if cp.tc.is_none() => "no transition",
             TcOutcome::Searched(_) => "done",
@@ -303,7 +317,10 @@ pub fn search(
                 lattice, &p.name, options, &mut run,
             ))
         }
-        (Err(reason), None) => TcOutcome::Refused(reason.clone()),
+        (Err(reason), None) => TcOutcome::Refused {
+            kind: Refusal::TooLarge,
+            why: reason.clone(),
+        },
         (Ok(level), None) => outcome_of(critical_temperature_observed(
             lattice, level, options, observe,
         )),
@@ -323,9 +340,14 @@ pub fn search(
 fn outcome_of(result: Result<CriticalPoint, SolveError>) -> TcOutcome {
     match result {
         Ok(cp) => TcOutcome::Searched(Box::new(cp)),
-        Err(e @ (SolveError::TooLarge { .. } | SolveError::FieldUnsupported { .. })) => {
-            TcOutcome::Refused(e.to_string())
-        }
+        Err(e @ SolveError::TooLarge { .. }) => TcOutcome::Refused {
+            kind: Refusal::TooLarge,
+            why: e.to_string(),
+        },
+        Err(e @ SolveError::FieldUnsupported { .. }) => TcOutcome::Refused {
+            kind: Refusal::FieldUnsupported,
+            why: e.to_string(),
+        },
         Err(e) => TcOutcome::Failed(e.to_string()),
     }
 }

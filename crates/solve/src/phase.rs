@@ -17,6 +17,8 @@
 //! instability, and one that heats stays ordered until the ordered branch ends: the
 //! hysteresis loop of the approximation.
 
+use std::sync::OnceLock;
+
 use rungs_lattice::{Lattice, Level};
 
 use crate::disordered::Disordered;
@@ -231,6 +233,9 @@ struct DisorderedState<'c> {
     notes: Vec<String>,
 }
 
+/// A Tc computed on demand (see [`PhaseFollower::cold_start_below`]).
+type ColdTc<'c> = Box<dyn Fn() -> Option<f64> + Send + Sync + 'c>;
+
 /// The last state of a path.
 #[derive(Debug, Clone)]
 enum Last {
@@ -254,8 +259,11 @@ pub struct PhaseFollower<'c> {
     /// (first points compare both).
     tc_hint: Option<f64>,
     /// Where a cold ordered start far below the order begins (the level's Tc at this
-    /// field when known, else `tc_hint`): see [`PhaseFollower::cold_start_below`].
-    cold_hint: Option<f64>,
+    /// field when known, else `tc_hint`), computed when first needed: see
+    /// [`PhaseFollower::cold_start_below`].
+    cold_tc: Option<ColdTc<'c>>,
+    /// `cold_tc`'s value once computed.
+    cold_hint: OnceLock<Option<f64>>,
     /// The lowest temperature the ordered branch was followed to, when it could not be
     /// followed further (double precision exhausted), with the reason.
     floor: Option<(f64, ())>,
@@ -277,19 +285,33 @@ impl<'c> PhaseFollower<'c> {
             disordered: Disordered::new(primitive_lattice, primitive, field),
             last: None,
             tc_hint,
-            cold_hint: tc_hint,
+            cold_tc: None,
+            cold_hint: OnceLock::new(),
             floor: None,
         }
     }
 
-    /// Cold ordered starts far below the order begin just below `tc` (the level's Tc at
-    /// this field, which a field can lower far below the h = 0 value: a start at 0.8 Tc(0)
-    /// would lie above the ordered region and find nothing). `None` keeps the h = 0 Tc.
-    pub fn cold_start_below(mut self, tc: Option<f64>) -> PhaseFollower<'c> {
-        if tc.is_some() {
-            self.cold_hint = tc;
-        }
+    /// Cold ordered starts far below the order begin just below the Tc that `tc` gives
+    /// (the level's Tc at this field, which a field can lower far below the h = 0 value: a
+    /// start at 0.8 Tc(0) would lie above the ordered region and find nothing); `tc` runs
+    /// only when an ordered state is first started, at most once. `None` from it keeps
+    /// the h = 0 Tc.
+    pub fn cold_start_below(
+        mut self,
+        tc: impl Fn() -> Option<f64> + Send + Sync + 'c,
+    ) -> PhaseFollower<'c> {
+        self.cold_tc = Some(Box::new(tc));
+        self.cold_hint = OnceLock::new();
         self
+    }
+
+    /// The Tc below which cold ordered starts begin near it (see
+    /// [`PhaseFollower::cold_start_below`]).
+    fn cold_hint(&self) -> Option<f64> {
+        match &self.cold_tc {
+            None => self.tc_hint,
+            Some(tc) => *self.cold_hint.get_or_init(|| tc().or(self.tc_hint)),
+        }
     }
 
     /// The equilibrium at `t`, continuing the branch of the point before.
@@ -723,7 +745,7 @@ impl<'c> PhaseFollower<'c> {
         let mut best: Option<(Vec<f64>, Vec<f64>, PhasePoint)> = None;
         // Far below Tc a product state is a poor start (its flip probabilities are off by
         // tens of decades): continuation from near Tc is faster and surer.
-        let far_below = self.cold_hint.is_some_and(|tc| t < 0.5 * tc);
+        let far_below = self.cold_hint().is_some_and(|tc| t < 0.5 * tc);
         let amplitudes: &[f64] = if far_below {
             &[]
         } else {
@@ -758,7 +780,7 @@ impl<'c> PhaseFollower<'c> {
             }
         }
         if best.is_none() {
-            if let Some(tc) = self.cold_hint.filter(|&tc| t < 0.8 * tc) {
+            if let Some(tc) = self.cold_hint().filter(|&tc| t < 0.8 * tc) {
                 let _ = &f;
                 // Cold start far below Tc: start near Tc and cool down to t.
                 let t0 = 0.8 * tc;
@@ -824,7 +846,9 @@ impl<'c> PhaseFollower<'c> {
             disordered: self.disordered.at_field(field),
             last: None,
             tc_hint: self.tc_hint,
-            cold_hint: self.cold_hint,
+            // The Tc at this follower's field does not hold at another.
+            cold_tc: None,
+            cold_hint: OnceLock::new(),
             floor: None,
         }
     }

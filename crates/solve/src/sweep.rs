@@ -111,7 +111,7 @@ pub fn sweep_level(
     let mut points = Vec::with_capacity(temps.len() * fields.len());
     for &h in fields {
         let mut follower = PhaseFollower::new(lattice, level, &cell, h, tc)
-            .cold_start_below(tc_at(lattice, level, tc, h));
+            .cold_start_below(move || tc_at(lattice, level, tc, h));
         for &t in temps {
             points.push(match follower.next(t) {
                 Ok(p) => SweepPoint::Solved(Box::new(p)),
@@ -142,7 +142,9 @@ pub fn sweep_level(
 /// below the h = 0 value `tc0`. A cold ordered start far below it begins by cooling from
 /// just below it, so `tc0` would start it above the ordered phase. `None` where the
 /// level has no instability at h (a ferromagnet in a field, or order that sets in only
-/// by a first-order transition): the follower then keeps `tc0`.
+/// by a first-order transition): the follower then keeps `tc0`. A search of its own at
+/// h ≠ 0 (seconds to minutes on big blocks), so the follower runs it only when it first
+/// starts an ordered state.
 fn tc_at(lattice: &Lattice, level: &Level, tc0: Option<f64>, h: f64) -> Option<f64> {
     if h == 0.0 || tc0.is_none() {
         return tc0;

@@ -317,3 +317,39 @@ fn a_small_field_moves_a_big_blocks_neel_point_a_little_and_smoothly() {
     let (a0, a1) = (zero.amplitude.unwrap(), small.amplitude.unwrap());
     assert!((a1 / a0 - 1.0).abs() < 1e-3, "{a0} {a1}");
 }
+
+#[test]
+fn the_cold_starts_tc_in_a_field_is_searched_only_when_an_ordered_state_is_started() {
+    // A sweep gives each field's follower the level's Tc at that field for cold ordered
+    // starts; that search (minutes on big blocks) runs at most once per follower, and
+    // not at all where only the disordered state is met.
+    use rungs_solve::phase::{PhaseCell, PhaseFollower};
+    use std::sync::atomic::{AtomicUsize, Ordering};
+    let anti = with_j("square", -1.0);
+    let lv = level(&anti, "pair");
+    let cp = critical_temperature(&anti, &lv, TcOptions::default()).unwrap();
+    let cell = PhaseCell::new(&anti, &lv, cp.ordering.as_ref(), [2, 2, 1]).unwrap();
+    let calls = AtomicUsize::new(0);
+    let tc_at_h = || {
+        calls.fetch_add(1, Ordering::SeqCst);
+        let options = TcOptions {
+            field: 2.0,
+            ..TcOptions::default()
+        };
+        critical_temperature(&anti, &lv, options)
+            .ok()
+            .and_then(|c| c.tc)
+    };
+    let mut follower = PhaseFollower::new(&anti, &lv, &cell, 2.0, cp.tc).cold_start_below(tc_at_h);
+    // Above the Néel line (the pair level's T_N(0) is 2/ln 2 ≈ 2.885, Bethe 1935; a field
+    // lowers it): disordered points only.
+    for t in [6.0, 5.0, 4.0] {
+        assert!(follower.next(t).unwrap().order_parameter.abs() < 1e-9);
+    }
+    assert_eq!(calls.load(Ordering::SeqCst), 0);
+    // Far below it: ordered, the search ran once however many points follow.
+    for t in [0.6, 0.5, 0.4] {
+        assert!(follower.next(t).unwrap().order_parameter > 0.5);
+    }
+    assert_eq!(calls.load(Ordering::SeqCst), 1);
+}

@@ -11,7 +11,9 @@
 
 use rungs_lattice::{Lattice, LatticeError, Level};
 use rungs_solve::extrapolate::{coherent_anomaly, inverse_size, Extrapolation, Rung};
-use rungs_solve::levels::{tc_levels, LevelEvent, LevelTc, LevelsError, Schedule, TcOutcome};
+use rungs_solve::levels::{
+    tc_levels, LevelEvent, LevelTc, LevelsError, Refusal, Schedule, TcOutcome,
+};
 use rungs_solve::ModeKind;
 
 use super::LadderError;
@@ -107,11 +109,10 @@ fn rung(row: LevelTc) -> RungResult {
             searched_down_to: cp.tc.is_none().then_some(cp.searched_down_to),
             ..base
         },
-        TcOutcome::Refused(why) => RungResult {
-            skipped: Some(if why.contains("searched at h = 0 only") {
-                format!("not searched in a field: {why}")
-            } else {
-                format!("too large for the engine: {why}")
+        TcOutcome::Refused { kind, why } => RungResult {
+            skipped: Some(match kind {
+                Refusal::FieldUnsupported => format!("not searched in a field: {why}"),
+                Refusal::TooLarge => format!("too large for the engine: {why}"),
             }),
             ..base
         },

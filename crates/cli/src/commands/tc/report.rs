@@ -128,7 +128,7 @@ impl Report for TcReport {
         let mut orders: Vec<(String, Vec<&str>, String)> = Vec::new();
         for row in &self.levels {
             match &row.computed.outcome {
-                TcOutcome::Refused(reason) => {
+                TcOutcome::Refused { why: reason, .. } => {
                     notes.push(format!("`{}` not computed: {reason}", row.level))
                 }
                 TcOutcome::Failed(reason) => {
