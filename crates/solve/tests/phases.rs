@@ -252,3 +252,59 @@ fn points_without_a_phase_and_frustration_are_said() {
         "{blank} blank point(s): {notes}"
     );
 }
+
+#[test]
+fn an_alloy_path_whose_order_falls_steeply_meets_its_second_order_line() {
+    // A made-up bcc A–B alloy (unlike nearest neighbours favoured, J1 = −1, and a weaker
+    // unlike next-nearest-neighbour preference, J2 = −0.25; demo data) at Δμ = 2h = 16.
+    // Between grid points 1.75 and 2.0 the B2 order parameter falls from ~0.3 to 0.145,
+    // and one continuation step overshot onto the reversed pattern (ψ < 0), which was
+    // read as a collapse: the path reported no transition, an empty grid point at
+    // T = 2 and a spurious upper spinodal there. The transition is second order where
+    // the disordered state goes unstable (common practice: the order vanishes
+    // continuously at the disordered state's instability, which the Tc search finds
+    // independently), and every grid point has a phase.
+    let l = inline(
+        "name: demo-bcc-alloy\ndimension: 3\n\
+         vectors: [[-0.5, 0.5, 0.5], [0.5, -0.5, 0.5], [0.5, 0.5, -0.5]]\n\
+         basis: [{name: a, position: [0, 0, 0]}]\n\
+         couplings: {J1: -1.0, J2: -0.25}\n\
+         bonds:\n\
+         - {from: a, to: a, cell: [1, 0, 0], coupling: J1}\n\
+         - {from: a, to: a, cell: [0, 1, 0], coupling: J1}\n\
+         - {from: a, to: a, cell: [0, 0, 1], coupling: J1}\n\
+         - {from: a, to: a, cell: [1, 1, 1], coupling: J1}\n\
+         - {from: a, to: a, cell: [1, 1, 0], coupling: J2}\n\
+         - {from: a, to: a, cell: [0, 1, 1], coupling: J2}\n\
+         - {from: a, to: a, cell: [1, 0, 1], coupling: J2}\n\
+         clusters:\n  tetrahedron:\n\
+         \x20   - [[a, [0, 0, 0]], [a, [1, 0, 0]], [a, [1, 1, 0]], [a, [1, 1, 1]]]\n\
+         \x20   - [[a, [0, 0, 0]], [a, [1, 0, 0]], [a, [1, 0, 1]], [a, [1, 1, 1]]]\n\
+         \x20   - [[a, [0, 0, 0]], [a, [0, 1, 0]], [a, [1, 1, 0]], [a, [1, 1, 1]]]\n\
+         \x20   - [[a, [0, 0, 0]], [a, [0, 1, 0]], [a, [0, 1, 1]], [a, [1, 1, 1]]]\n\
+         \x20   - [[a, [0, 0, 0]], [a, [0, 0, 1]], [a, [1, 0, 1]], [a, [1, 1, 1]]]\n\
+         \x20   - [[a, [0, 0, 0]], [a, [0, 0, 1]], [a, [0, 1, 1]], [a, [1, 1, 1]]]\n",
+    );
+    let h = 8.0;
+    let temps: Vec<f64> = (0..=22).map(|i| 0.5 + 0.25 * i as f64).collect();
+    let d = diagram(&l, "tetrahedron", &temps, &[h], Along::Temperature);
+    let path = &d.paths[0];
+    assert!(
+        path.grid.iter().all(|g| g.phase.is_some()),
+        "{:?}",
+        path.grid
+    );
+    let options = TcOptions {
+        field: h,
+        ..TcOptions::default()
+    };
+    let line = critical_temperature(&l, &level(&l, "tetrahedron"), options)
+        .unwrap()
+        .tc
+        .unwrap();
+    assert_eq!(path.transitions.len(), 1, "{:?}", path.transitions);
+    let t = &path.transitions[0];
+    assert_eq!(t.kind, Kind::Second, "{t:?}");
+    assert!((t.temperature - line).abs() < 1e-6, "{t:?} against {line}");
+    assert!(path.spinodals.is_empty(), "{:?}", path.spinodals);
+}

@@ -13,9 +13,10 @@
 //!   Hessian factorises), its sites of one symmetry class keep equal magnetisations
 //!   (else it has left the phase's symmetry), and its order parameter is not zero (else
 //!   it has collapsed onto the disordered state). A step whose state changes by more
-//!   than [`SMOOTH`] is halved until every piece changes by less: a jump that survives
-//!   eight halvings is a discontinuity — the branch ended at a fold and Newton fell
-//!   onto another one.
+//!   than [`SMOOTH`], or lands on the pattern's reversed state (ψ < 0, a predictor's
+//!   overshoot where the order falls steeply), is halved until every piece changes by
+//!   less: a jump that survives eight halvings is a discontinuity — the branch ended at
+//!   a fold and Newton fell onto another one (or, reversed, the order went through zero).
 
 use rungs_lattice::{Lattice, Level};
 
@@ -195,7 +196,7 @@ impl<'s> OrderedWalker<'s> {
             Along::Field => self.base.at_field(h).start_ordered_state(t),
         }
         .ok()??;
-        self.evaluate(x, state).ok()
+        self.evaluate(x, state).ok().filter(|s| s.psi > 0.0)
     }
 
     /// The branch continued from `from` to x, with the jump test of the module
@@ -212,11 +213,15 @@ impl<'s> OrderedWalker<'s> {
             .zip(&to.sublattice)
             .map(|(a, b)| (a - b).abs())
             .fold(0.0, f64::max);
-        if change <= SMOOTH {
+        // A long step's predictor can overshoot through zero order and Newton then lands
+        // on the pattern's reversed state (ψ < 0): a jump to be halved like any other.
+        let reversed = to.psi < 0.0;
+        if change <= SMOOTH && !reversed {
             return Ok(to);
         }
         if depth >= MAX_HALVINGS {
-            return Err(Stop::Fold);
+            // Reversed within the smallest step: the order went through zero.
+            return Err(if reversed { Stop::Collapse } else { Stop::Fold });
         }
         let mid = self.walk_depth(from, 0.5 * (from.x + x), depth + 1)?;
         self.walk_depth(&mid, x, depth + 1)
@@ -287,7 +292,8 @@ impl<'s> OrderedWalker<'s> {
         } else {
             centred_amplitude(pattern, &m)
         };
-        if psi < ORDER_EPSILON {
+        // ψ < 0 (the reversed pattern) is judged by the caller: a jump when walking.
+        if psi.abs() < ORDER_EPSILON {
             return Err(Stop::Collapse);
         }
         // Sites of one class keep equal magnetisations.
