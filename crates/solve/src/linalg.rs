@@ -123,6 +123,21 @@ pub fn min_eigenvalue_complex(m: &DMatrix<Complex<f64>>) -> f64 {
         .unwrap_or(f64::NAN)
 }
 
+/// The smallest eigenvalue of `D^{-1/2} M D^{-1/2}` (D = diag M) for a real symmetric
+/// matrix with a positive diagonal: its curvature relative to its own scale, whose
+/// rounding floor is ~10⁻¹⁶ however widely the diagonal spans (flip-basis Hessians at
+/// low T span 40 decades). `None` for a non-positive diagonal or a failed solve.
+pub fn lowest_scaled_real(m: &DMatrix<f64>) -> Option<f64> {
+    let d: Vec<f64> = (0..m.nrows()).map(|i| m[(i, i)]).collect();
+    if d.iter().any(|&v| !(v > 0.0 && v.is_finite())) {
+        return None;
+    }
+    let s: Vec<f64> = d.iter().map(|v| 1.0 / v.sqrt()).collect();
+    let scaled = DMatrix::from_fn(m.nrows(), m.ncols(), |i, j| m[(i, j)] * s[i] * s[j]);
+    let lowest = min_eigenvalue_real(&scaled);
+    lowest.is_finite().then_some(lowest)
+}
+
 /// The Cholesky factor `M = L Lᵀ` of a real symmetric positive definite matrix, kept
 /// to solve with it again.
 #[derive(Debug, Clone)]

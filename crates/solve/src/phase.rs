@@ -230,7 +230,19 @@ struct DisorderedState<'c> {
     free_energy: f64,
     m_cell: Vec<f64>,
     stable: bool,
+    /// Its stability is within rounding (|λ| ≤ [`STABILITY_NOISE`]): the sign is not
+    /// resolved.
+    at_rounding: bool,
     notes: Vec<String>,
+}
+
+/// Why a path's ordered branch could not be followed below some temperature.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Floor {
+    /// The cell has sites held by most of their neighbours (flips nearly forced).
+    InteriorSites,
+    /// Neither the ordered branch nor the disordered state's stability is resolved.
+    Unresolved,
 }
 
 /// A Tc computed on demand (see [`PhaseFollower::cold_start_below`]).
@@ -266,7 +278,7 @@ pub struct PhaseFollower<'c> {
     cold_hint: OnceLock<Option<f64>>,
     /// The lowest temperature the ordered branch was followed to, when it could not be
     /// followed further (double precision exhausted), with the reason.
-    floor: Option<(f64, ())>,
+    floor: Option<(f64, Floor)>,
 }
 
 impl<'c> PhaseFollower<'c> {
@@ -319,11 +331,16 @@ impl<'c> PhaseFollower<'c> {
         if !(t.is_finite() && t > 0.0) {
             return Err(SolveError::BadTemperature { t });
         }
-        if let Some((floor, _)) = self.floor {
+        if let Some((floor, why)) = self.floor {
             if t < floor {
-                return Err(self.precision_limit(floor, t));
+                return Err(match why {
+                    Floor::InteriorSites => self.precision_limit(floor, t),
+                    Floor::Unresolved => self.rounding_limit(Some(floor), t),
+                });
             }
         }
+        // The ordered branch was lost on cooling below this temperature.
+        let mut lost_below = None;
         if let Some(Last::Ordered { t: tw, signs, x }) = self.last.clone() {
             match self.continue_ordered(tw, &signs, &x, t) {
                 Ok((signs, x)) => {
@@ -333,10 +350,10 @@ impl<'c> PhaseFollower<'c> {
                     }
                 }
                 Err(_) if t < tw && self.cell.interior_sites => {
-                    self.floor = Some((tw, ()));
+                    self.floor = Some((tw, Floor::InteriorSites));
                     return Err(self.precision_limit(tw, t));
                 }
-                Err(_) => {}
+                Err(_) => lost_below = (t < tw).then_some(tw),
             }
         }
         let cold = self.last.is_none();
@@ -357,6 +374,14 @@ impl<'c> PhaseFollower<'c> {
                 }
             }
         };
+        if let Some(tw) = lost_below.filter(|_| dis.stable && dis.at_rounding) {
+            // Neither state is resolved: the ordered branch could not be followed down
+            // to t and the disordered state is stable only within rounding. Its C and χ
+            // (solves with a Hessian singular to double precision) would be noise, so no
+            // state is reported here or below.
+            self.floor = Some((tw, Floor::Unresolved));
+            return Err(self.rounding_limit(Some(tw), t));
+        }
         if dis.stable {
             // A first point: the ordered phase may coexist (first order) near and
             // somewhat above the level's Tc (the disordered state's spinodal); well above
@@ -364,12 +389,19 @@ impl<'c> PhaseFollower<'c> {
             let near = self.tc_hint.is_some_and(|tc| t < 1.25 * tc);
             if cold && near && self.cell.ordering.is_some() {
                 // A first point: the ordered phase may coexist (first order); the
-                // lower free energy is the equilibrium.
-                if let Some((signs, x, p)) = self.start_ordered(t, Some(&dis))? {
-                    if p.observables.free_energy < dis.free_energy - 1e-12 {
+                // lower free energy is the equilibrium. Where the disordered state's
+                // stability is not resolved, a tie goes to the ordered state (at low T a
+                // cluster approximation's symmetric state can be a mixture of the ordered
+                // domains, equal in F to rounding), and without an ordered state neither
+                // is reported.
+                let tie = if dis.at_rounding { 1e-12 } else { -1e-12 };
+                match self.start_ordered(t, Some(&dis))? {
+                    Some((signs, x, p)) if p.observables.free_energy < dis.free_energy + tie => {
                         self.last = Some(Last::Ordered { t, signs, x });
                         return Ok(p);
                     }
+                    None if dis.at_rounding => return Err(self.rounding_limit(None, t)),
+                    _ => {}
                 }
             }
             let p = self.disordered_point(&dis)?;
@@ -403,6 +435,29 @@ impl<'c> PhaseFollower<'c> {
         }
     }
 
+    /// The error of a level whose ordered branch was lost below `tw` where the
+    /// disordered state's stability is not resolved either.
+    /// The error where no ordered state is resolved (lost on cooling below `tw`, or not
+    /// found by a cold start) and the disordered state's stability is not resolved
+    /// either.
+    fn rounding_limit(&self, tw: Option<f64>, t: f64) -> SolveError {
+        let ordered = match tw {
+            Some(tw) => format!(
+                "the ordered state could not be followed below T = {}",
+                crate::report_num(tw)
+            ),
+            None => "no ordered state could be started here".to_string(),
+        };
+        SolveError::PrecisionLimit {
+            level: self.cell.level.name.clone(),
+            t,
+            h: self.field,
+            detail: format!(
+                "{ordered}, and the disordered state's stability is below double-precision resolution, so neither is reported: the cluster probabilities span more decades than double precision resolves (in a field the two sublattices' excitations differ in energy, and the ratio of their Boltzmann factors falls below 10⁻¹⁶), and this level's free energy barely tells a single ordered domain from a mixture of domains at low temperature; a path that cools from the ordered phase gets as far as the precision allows"
+            ),
+        }
+    }
+
     /// The error of a level whose ordered branch cannot be followed below `tw`.
     fn precision_limit(&self, tw: f64, t: f64) -> SolveError {
         SolveError::PrecisionLimit {
@@ -414,6 +469,23 @@ impl<'c> PhaseFollower<'c> {
                 crate::report_num(tw)
             ),
         }
+    }
+
+    /// The smallest scaled eigenvalue of the disordered state's H(q) over the cell's
+    /// wavevectors at t (`None` where it is not solved).
+    fn disordered_lowest(&mut self, t: f64) -> Option<f64> {
+        let (f, x) = self.disordered.solve(t).ok()?;
+        let view = self.disordered.in_correlations(&f, &x);
+        let (fq, xq) = view.as_ref().map_or((&f, &x[..]), |(g, y)| (g, &y[..]));
+        let sector = self.disordered.sector();
+        let qh = QHessian::scaled(fq, self.primitive_lattice, xq, sector, fq.is_precise())?;
+        Some(
+            self.cell
+                .wavevectors
+                .iter()
+                .map(|q| qh.lowest_value(q))
+                .fold(f64::INFINITY, f64::min),
+        )
     }
 
     /// The disordered state at t, its free energy per site, its sublattice
@@ -443,7 +515,14 @@ impl<'c> PhaseFollower<'c> {
             .fold(f64::INFINITY, f64::min);
         let stable = lowest >= -STABILITY_NOISE || lowest.is_nan();
         let mut notes = Vec::new();
-        if lowest.abs() <= STABILITY_NOISE {
+        // At rounding: not where λ merely crosses zero (a grid point on a second-order
+        // line, resolved a millionth away), but where it stays there.
+        let at_rounding = lowest.abs() <= STABILITY_NOISE
+            && ![1.0 + 1e-6, 1.0 - 1e-6].iter().any(|k| {
+                self.disordered_lowest(k * t)
+                    .is_some_and(|l| l > STABILITY_NOISE)
+            });
+        if at_rounding {
             notes.push(format!(
                 "the stability of the disordered state is below double-precision resolution here (smallest scaled Hessian eigenvalue {lowest:.1e}): it is taken as stable unless an ordered state has a clearly lower free energy"
             ));
@@ -471,6 +550,7 @@ impl<'c> PhaseFollower<'c> {
             free_energy: ev.free_energy / nb,
             m_cell,
             stable,
+            at_rounding,
             notes,
             f,
             x,
@@ -591,6 +671,15 @@ impl<'c> PhaseFollower<'c> {
                 break;
             };
             if lam >= 0.0 {
+                return Ok(sol.x);
+            }
+            // Within rounding of a minimum: at low T in a field a cluster approximation's
+            // Néel state can have a curvature (relative to the Hessian's own scale) far
+            // below double precision, e.g. the plaquette level's nearly free mixing of the
+            // two Néel domains (its entropy S_plaq − 2 S_pair + S_site vanishes along it
+            // at T = 0). The sign is then not resolved; the branch is kept, as the
+            // disordered state is kept when its stability is at rounding.
+            if crate::linalg::lowest_scaled_real(&h).is_some_and(|l| l >= -STABILITY_NOISE) {
                 return Ok(sol.x);
             }
             // Step along the negative curvature, as far as stays feasible and lowers F.

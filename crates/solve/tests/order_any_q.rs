@@ -353,3 +353,46 @@ fn the_cold_starts_tc_in_a_field_is_searched_only_when_an_ordered_state_is_start
     }
     assert_eq!(calls.load(Ordering::SeqCst), 1);
 }
+
+#[test]
+fn a_neel_state_past_double_precision_in_a_field_is_not_replaced_by_noise() {
+    // Square antiferromagnet, plaquette level, h = 2. Cooling, the Néel state is
+    // followed until the ratio e^{−8/T} of its two sublattices' excitation factors
+    // (flip costs 2(4 − h) and 2(4 + h)) falls below double precision, near T ≈ 0.22.
+    // Below it the symmetric state (a mixture of the two Néel domains, equal in F to
+    // rounding, its Hessian singular to double precision) used to be reported as the
+    // disordered phase with C ≈ 34–133 and χ ≈ 1.7–3.3, where both are exponentially small
+    // (common practice: every excitation is gapped). Such points are now omitted with
+    // the reason, on cooling and from a cold start alike.
+    let anti = with_j("square", -1.0);
+    let lv = level(&anti, "plaquette");
+    let run = |temps: &[f64]| {
+        sweep_level(&anti, &lv, temps, &[2.0], SweepOptions::default(), &|| {})
+            .unwrap()
+            .points
+    };
+    let cooled = run(&[0.5, 0.4, 0.3, 0.25, 0.2, 0.1]);
+    let cold = run(&[0.1]);
+    let mut solved = 0;
+    for p in cooled.iter().chain(&cold) {
+        match p {
+            SweepPoint::Solved(p) => {
+                solved += 1;
+                let o = &p.observables;
+                assert!(o.temperature >= 0.25, "{p:?}");
+                assert!(p.order_parameter > 0.99, "{p:?}");
+                assert!(o.specific_heat.abs() < 0.02, "{p:?}");
+                assert!(o.susceptibility.abs() < 0.01, "{p:?}");
+            }
+            SweepPoint::Omitted {
+                temperature,
+                reason,
+                ..
+            } => {
+                assert!(*temperature < 0.25, "{temperature}: {reason}");
+                assert!(reason.contains("double-precision resolution"), "{reason}");
+            }
+        }
+    }
+    assert_eq!(solved, 4);
+}

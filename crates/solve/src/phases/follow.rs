@@ -62,6 +62,9 @@ pub struct Sol {
     pub state: Option<OrderedState>,
     /// For the disordered phase: `λ` over every ordered cell's wavevectors.
     pub stability: f64,
+    /// For the disordered phase: `λ` is within rounding of zero here and a millionth
+    /// away on both sides (not a crossing), so its sign is not resolved.
+    pub unresolved: bool,
 }
 
 /// Why a branch does not reach a point.
@@ -119,12 +122,36 @@ impl<'s> DisorderedWalker<'s> {
             }
         };
         let (f, xs) = dis.solve(t).ok()?;
-        let qh = QHessian::scaled(&f, self.lattice, &xs, dis.sector(), f.is_precise())?;
-        let stability = qs
-            .unwrap_or(self.wavevectors)
-            .iter()
-            .map(|q| qh.lowest_value(q))
-            .fold(f64::INFINITY, f64::min);
+        let lowest = |f: &Functional, xs: &[f64]| {
+            QHessian::scaled(f, self.lattice, xs, dis.sector(), f.is_precise()).map(|qh| {
+                qs.unwrap_or(self.wavevectors)
+                    .iter()
+                    .map(|q| qh.lowest_value(q))
+                    .fold(f64::INFINITY, f64::min)
+            })
+        };
+        let stability = lowest(&f, &xs)?;
+        let unresolved = stability.abs() <= STABILITY_NOISE && {
+            let dx = 1e-6 * x.abs().max(1.0);
+            ![x + dx, x - dx].iter().any(|&y| {
+                let (ty, hy) = match self.along {
+                    Along::Temperature => (y, self.fixed),
+                    Along::Field => (self.fixed, y),
+                };
+                let other;
+                let d = match self.along {
+                    Along::Temperature => dis,
+                    Along::Field => {
+                        other = self.base.at_field(hy);
+                        &other
+                    }
+                };
+                d.solve(ty)
+                    .ok()
+                    .and_then(|(g, ys)| lowest(&g, &ys))
+                    .is_some_and(|l| l > STABILITY_NOISE)
+            })
+        };
         let ev = f.evaluate(&xs)?;
         let nb = f.level().sites_per_cell as f64;
         let m = f.site_magnetizations(&xs);
@@ -139,12 +166,19 @@ impl<'s> DisorderedWalker<'s> {
             psi: 0.0,
             state: None,
             stability: if stability.is_nan() { 0.0 } else { stability },
+            unresolved,
         })
     }
 
-    /// Whether a solved state is a phase (stable within rounding).
+    /// Whether a solved state is a phase: stable within rounding, and resolved. A
+    /// stability that stays within rounding of zero (|λ| ≤ 10⁻¹² here and a millionth
+    /// away) does not count: at low T in a field a cluster approximation's symmetric
+    /// state can be a mixture of ordered domains, equal in F to the ordered state to
+    /// rounding and with a Hessian singular to double precision, and taking it for a
+    /// phase put a spurious first-order transition where the ordered branch's precision
+    /// ran out. A grid point on a second-order line (λ crosses zero there) counts.
     pub fn stable(sol: &Sol) -> bool {
-        sol.stability >= -STABILITY_NOISE
+        sol.stability >= -STABILITY_NOISE && !sol.unresolved
     }
 }
 
@@ -328,6 +362,7 @@ impl<'s> OrderedWalker<'s> {
             psi,
             state: Some(state),
             stability: 0.0,
+            unresolved: false,
         })
     }
 }
