@@ -89,6 +89,52 @@ fn transition_points(alloy: bool, t: &Transition) -> Vec<(f64, f64, usize)> {
     }
 }
 
+/// Where a phase's name goes: at a grid point of the phase far (in plot fractions) from
+/// every other phase's points and transition points, so that it sits inside its region
+/// rather than on a line; points whose label would run off the plot's right or
+/// bottom edge are used only if there are no others. The centre of the points when
+/// nothing else is drawn.
+fn label_spot(
+    own: &[(f64, f64)],
+    others: &[(f64, f64)],
+    (x0, x1): (f64, f64),
+    (y0, y1): (f64, f64),
+) -> (f64, f64) {
+    let n = own.len().max(1) as f64;
+    let centre = (
+        own.iter().map(|p| p.0).sum::<f64>() / n,
+        own.iter().map(|p| p.1).sum::<f64>() / n,
+    );
+    if others.is_empty() {
+        return centre;
+    }
+    let (sx, sy) = ((x1 - x0).max(1e-300), (y1 - y0).max(1e-300));
+    let clearance = |p: &(f64, f64)| {
+        others
+            .iter()
+            .map(|o| ((p.0 - o.0) / sx).powi(2) + ((p.1 - o.1) / sy).powi(2))
+            .fold(f64::INFINITY, f64::min)
+    };
+    // The text runs right of and below its anchor.
+    let fits = |p: &&(f64, f64)| (p.0 - x0) / sx < 0.85 && (p.1 - y0) / sy > 0.08;
+    // Of the points at least half as far from everything else as the farthest one, the
+    // one nearest the centre: inside the region, not pushed into a corner.
+    let best = |cands: &mut dyn Iterator<Item = &(f64, f64)>| {
+        let scored: Vec<(f64, (f64, f64))> = cands.map(|p| (clearance(p), *p)).collect();
+        let top = scored.iter().map(|s| s.0).fold(0.0, f64::max);
+        let to_centre =
+            |p: &(f64, f64)| ((p.0 - centre.0) / sx).powi(2) + ((p.1 - centre.1) / sy).powi(2);
+        scored
+            .iter()
+            .filter(|s| s.0 >= 0.25 * top)
+            .min_by(|a, b| to_centre(&a.1).total_cmp(&to_centre(&b.1)))
+            .map(|s| s.1)
+    };
+    best(&mut own.iter().filter(fits))
+        .or_else(|| best(&mut own.iter()))
+        .unwrap_or(centre)
+}
+
 fn draw_panel<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     lattice: &str,
@@ -167,8 +213,18 @@ fn draw_panel<DB: DrawingBackend>(
             plot.draw(&Circle::new((x, t), 2, colour.filled()))?;
         }
         if !pts.is_empty() {
-            let cx = pts.iter().map(|p| p.0).sum::<f64>() / pts.len() as f64;
-            let cy = pts.iter().map(|p| p.1).sum::<f64>() / pts.len() as f64;
+            let others: Vec<(f64, f64)> = grid
+                .iter()
+                .filter(|g| g.phase.as_ref().is_some_and(|p| p != name))
+                .filter_map(|g| Some((x_of(alloy, g.field, g.magnetization?), g.temperature)))
+                .chain(d.paths.iter().flat_map(|p| {
+                    p.transitions
+                        .iter()
+                        .flat_map(|t| transition_points(alloy, t))
+                        .map(|(x, y, _)| (x, y))
+                }))
+                .collect();
+            let (cx, cy) = label_spot(&pts, &others, (x0, x1), (y0, y1));
             plot.draw(&Text::new(
                 name.clone(),
                 (cx, cy),
@@ -236,4 +292,36 @@ fn draw_panel<DB: DrawingBackend>(
         plot.draw(&marker(Marker::Cross, (s.field, s.temperature), 4, grey))?;
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::label_spot;
+
+    #[test]
+    fn a_phase_label_sits_inside_its_region_not_on_its_boundary() {
+        // A phase on the 11 × 11 grid left of the line x = 0.6, the line's points and the
+        // other phase's points to the right: the label's anchor is well inside the left
+        // region (the centre of its points lies 0.3 from the line, and no point of it at
+        // the line is taken).
+        let mut own = Vec::new();
+        let mut others = Vec::new();
+        for i in 0..=10 {
+            for j in 0..=10 {
+                let (x, y) = (i as f64 / 10.0, j as f64 / 10.0);
+                if x < 0.55 {
+                    own.push((x, y));
+                } else {
+                    others.push((x, y));
+                }
+            }
+            others.push((0.6, i as f64 / 10.0));
+        }
+        let (x, y) = label_spot(&own, &others, (0.0, 1.0), (0.0, 1.0));
+        assert!(x <= 0.4, "{x}");
+        assert!((0.1..=0.9).contains(&y), "{y}");
+        // With nothing else drawn, the centre of the points.
+        let (cx, cy) = label_spot(&own, &[], (0.0, 1.0), (0.0, 1.0));
+        assert!((cx - 0.25).abs() < 1e-12 && (cy - 0.5).abs() < 1e-12);
+    }
 }
