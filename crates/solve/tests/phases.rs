@@ -308,3 +308,34 @@ fn an_alloy_path_whose_order_falls_steeply_meets_its_second_order_line() {
     assert!((t.temperature - line).abs() < 1e-6, "{t:?} against {line}");
     assert!(path.spinodals.is_empty(), "{:?}", path.spinodals);
 }
+
+#[test]
+fn where_the_neel_branch_outruns_double_precision_no_transition_is_invented() {
+    // Square antiferromagnet, plaquette level, h = 2: the Néel state is the equilibrium
+    // down to T = 0 (it is the ground state for h < z|J| = 4; common practice), but below
+    // T ≈ 0.21 its cluster probabilities outrun doubles (see the sweep test
+    // `a_neel_state_past_double_precision_in_a_field_is_not_replaced_by_noise`). The
+    // symmetric state there, of unresolved stability, used to be taken for the
+    // disordered phase, with a first-order transition to it; the path now has no
+    // transition, no spinodal, and says where the arithmetic ends.
+    let l = with_j("square", -1.0);
+    let temps = [0.2, 0.3, 0.4, 0.5, 0.6];
+    let d = diagram(&l, "plaquette", &temps, &[2.0], Along::Temperature);
+    let path = &d.paths[0];
+    assert!(path.transitions.is_empty(), "{:?}", path.transitions);
+    assert!(path.spinodals.is_empty(), "{:?}", path.spinodals);
+    for g in &path.grid {
+        if g.temperature >= 0.3 {
+            assert_eq!(g.phase.as_deref(), Some("AB"), "{g:?}");
+        } else {
+            assert!(g.phase.as_deref() != Some("disordered"), "{g:?}");
+        }
+    }
+    assert!(
+        path.notes
+            .iter()
+            .any(|n| n.contains("limit of the arithmetic")),
+        "{:?}",
+        path.notes
+    );
+}

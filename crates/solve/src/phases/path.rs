@@ -137,7 +137,7 @@ pub fn run(setup: &PhaseDiagramSetup, index: usize) -> PathResult {
     let grid = work.grid(&runs, &eq);
     let mut used: Vec<(usize, usize)> = Vec::new();
     let transitions = work.transitions(&runs, &eq, &mut used);
-    let mut spinodals = work.spinodals(&runs, &used);
+    let mut spinodals = work.spinodals(&runs, &used, &d_sols);
     // Below a second-order transition out of the disordered phase (along T) that phase
     // is unstable, not metastable: an end of a disordered stretch found there (a state
     // judged stable only within rounding, deep in the ordered region) is no spinodal.
@@ -159,7 +159,7 @@ pub fn run(setup: &PhaseDiagramSetup, index: usize) -> PathResult {
         .collect();
     if let Some(first) = lost.first() {
         work.notes.push(format!(
-            "no phase could be followed at {} of this path's points ({} = {}{}): the disordered state is unstable or unsolved there and no candidate ordered phase converged, so the diagram says nothing about them",
+            "no phase could be followed at {} of this path's points ({} = {}{}): the disordered state is unstable, unsolved or of unresolved stability there and no candidate ordered phase converged, so the diagram says nothing about them",
             lost.len(),
             work.variable(),
             crate::report_num(*first),
@@ -853,8 +853,14 @@ impl<'s> PathWork<'s> {
     }
 
     /// Branch ends that are neither the path's ends nor transitions.
-    fn spinodals(&self, runs: &[Run], used: &[(usize, usize)]) -> Vec<Spinodal> {
+    fn spinodals(
+        &mut self,
+        runs: &[Run],
+        used: &[(usize, usize)],
+        d_sols: &[Option<Sol>],
+    ) -> Vec<Spinodal> {
         let mut out = Vec::new();
+        let mut precision_ends = Vec::new();
         for (r, run) in runs.iter().enumerate() {
             // A ferromagnet's disordered runs along h duplicate its polarised branches.
             if run.cand == 0 && self.setup.uniform_order && self.along == Along::Field {
@@ -877,6 +883,20 @@ impl<'s> PathWork<'s> {
                 if e.boundary || e.continuous {
                     continue;
                 }
+                // Past an ordered branch's end the disordered state's stability is not
+                // resolved either: the arithmetic, not metastability, ended the branch.
+                let beyond = match side {
+                    Side::Lower => run.first.checked_sub(1),
+                    Side::Upper => Some(run.last() + 1),
+                };
+                let unresolved = run.cand > 0
+                    && beyond
+                        .and_then(|i| d_sols.get(i))
+                        .is_some_and(|d| d.as_ref().is_some_and(|d| d.unresolved));
+                if unresolved {
+                    precision_ends.push((self.class(run, &e.sol), e.x));
+                    continue;
+                }
                 let (t, h) = self.setup.spec.point(self.fixed, e.x);
                 out.push(Spinodal {
                     temperature: t,
@@ -885,6 +905,13 @@ impl<'s> PathWork<'s> {
                     side,
                 });
             }
+        }
+        for (phase, x) in precision_ends {
+            self.notes.push(format!(
+                "the {phase} branch could not be followed beyond {} = {}, where the disordered state's stability is below double-precision resolution too: the cluster probabilities there span more decades than doubles resolve, so this end is a limit of the arithmetic, not of metastability, and the grid points past it have no phase",
+                self.variable(),
+                crate::report_num(x)
+            ));
         }
         out.sort_by(|a, b| {
             let key = |s: &Spinodal| match self.along {
