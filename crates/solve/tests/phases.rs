@@ -264,27 +264,9 @@ fn an_alloy_path_whose_order_falls_steeply_meets_its_second_order_line() {
     // the disordered state goes unstable (common practice: the order vanishes
     // continuously at the disordered state's instability, which the Tc search finds
     // independently), and every grid point has a phase.
-    let l = inline(
-        "name: demo-bcc-alloy\ndimension: 3\n\
-         vectors: [[-0.5, 0.5, 0.5], [0.5, -0.5, 0.5], [0.5, 0.5, -0.5]]\n\
-         basis: [{name: a, position: [0, 0, 0]}]\n\
-         couplings: {J1: -1.0, J2: -0.25}\n\
-         bonds:\n\
-         - {from: a, to: a, cell: [1, 0, 0], coupling: J1}\n\
-         - {from: a, to: a, cell: [0, 1, 0], coupling: J1}\n\
-         - {from: a, to: a, cell: [0, 0, 1], coupling: J1}\n\
-         - {from: a, to: a, cell: [1, 1, 1], coupling: J1}\n\
-         - {from: a, to: a, cell: [1, 1, 0], coupling: J2}\n\
-         - {from: a, to: a, cell: [0, 1, 1], coupling: J2}\n\
-         - {from: a, to: a, cell: [1, 0, 1], coupling: J2}\n\
-         clusters:\n  tetrahedron:\n\
-         \x20   - [[a, [0, 0, 0]], [a, [1, 0, 0]], [a, [1, 1, 0]], [a, [1, 1, 1]]]\n\
-         \x20   - [[a, [0, 0, 0]], [a, [1, 0, 0]], [a, [1, 0, 1]], [a, [1, 1, 1]]]\n\
-         \x20   - [[a, [0, 0, 0]], [a, [0, 1, 0]], [a, [1, 1, 0]], [a, [1, 1, 1]]]\n\
-         \x20   - [[a, [0, 0, 0]], [a, [0, 1, 0]], [a, [0, 1, 1]], [a, [1, 1, 1]]]\n\
-         \x20   - [[a, [0, 0, 0]], [a, [0, 0, 1]], [a, [1, 0, 1]], [a, [1, 1, 1]]]\n\
-         \x20   - [[a, [0, 0, 0]], [a, [0, 0, 1]], [a, [0, 1, 1]], [a, [1, 1, 1]]]\n",
-    );
+    let file = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../../tests/fixtures/demo_bcc_alloy.yaml");
+    let l = Lattice::from_file(&file).unwrap();
     let h = 8.0;
     let temps: Vec<f64> = (0..=22).map(|i| 0.5 + 0.25 * i as f64).collect();
     let d = diagram(&l, "tetrahedron", &temps, &[h], Along::Temperature);
