@@ -174,6 +174,13 @@ fn square_ladder_against_onsager() {
         "{:?}",
         notes(&doc)
     );
+    // The fitted γ is an effective exponent; the output says its ± does not bound the
+    // distance to the true one.
+    assert!(
+        has_note(&doc, "γ = 1 + ψ is the effective exponent of these rungs"),
+        "{:?}",
+        notes(&doc)
+    );
 }
 
 /// The file's own cluster rungs without the 4×4 block (pair, plaquette, 3×3): three
