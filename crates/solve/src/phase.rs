@@ -435,8 +435,6 @@ impl<'c> PhaseFollower<'c> {
         }
     }
 
-    /// The error of a level whose ordered branch was lost below `tw` where the
-    /// disordered state's stability is not resolved either.
     /// The error where no ordered state is resolved (lost on cooling below `tw`, or not
     /// found by a cold start) and the disordered state's stability is not resolved
     /// either.

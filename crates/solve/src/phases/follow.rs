@@ -121,7 +121,9 @@ impl<'s> DisorderedWalker<'s> {
                 &fresh
             }
         };
-        let (f, xs) = dis.solve(t).ok()?;
+        // In correlations where the field's flip basis would press the scaled spectrum
+        // below its rounding (`Disordered::solve_for_stability`), as the sweep does.
+        let (f, xs) = dis.solve_for_stability(t).ok()?;
         let lowest = |f: &Functional, xs: &[f64]| {
             QHessian::scaled(f, self.lattice, xs, dis.sector(), f.is_precise()).map(|qh| {
                 qs.unwrap_or(self.wavevectors)
@@ -146,7 +148,7 @@ impl<'s> DisorderedWalker<'s> {
                         &other
                     }
                 };
-                d.solve(ty)
+                d.solve_for_stability(ty)
                     .ok()
                     .and_then(|(g, ys)| lowest(&g, &ys))
                     .is_some_and(|l| l > STABILITY_NOISE)
