@@ -181,6 +181,12 @@ fn square_ladder_against_onsager() {
         "{:?}",
         notes(&doc)
     );
+    // Notes are prose: no runs of spaces left by a broken line continuation.
+    assert!(
+        notes(&doc).iter().all(|n| !n.contains("  ")),
+        "{:?}",
+        notes(&doc)
+    );
 }
 
 /// The file's own cluster rungs without the 4×4 block (pair, plaquette, 3×3): three

@@ -271,7 +271,11 @@ pub fn extrapolate(rungs: &[RungResult], notes: &mut Vec<String>) -> Vec<Extrapo
     }
     if cam {
         notes.push(
-            "coherent-anomaly: γ = 1 + ψ is the effective exponent of these rungs, not the limit: it moves              steeply with Tc* (a shift of Tc* within its ± changes the slope of ln χ̄ between the two largest              rungs by tenths) and approaches the true γ slowly, so its ± (the fit's variants) does not bound              the distance to the true exponent (square lattice, pair to 4×4 block: 1.62 ± 0.03, where the              exact γ is 7/4)"
+            "coherent-anomaly: γ = 1 + ψ is the effective exponent of these rungs, not the limit: it \
+             moves steeply with Tc* (a shift of Tc* within its ± changes the slope of ln χ̄ between the \
+             two largest rungs by tenths) and approaches the true γ slowly, so its ± (the fit's variants) \
+             does not bound the distance to the true exponent (square lattice, pair to 4×4 block: 1.62 ± \
+             0.03, where the exact γ is 7/4)"
                 .into(),
         );
     }
