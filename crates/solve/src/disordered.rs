@@ -16,6 +16,7 @@ use rungs_lattice::{symmetry, Lattice, Level};
 use crate::equilibrium::{minimise, NewtonOptions};
 use crate::error::SolveError;
 use crate::functional::{Basis, Block, Functional};
+use crate::qspace::{QHessian, Wavevector};
 
 /// Largest cancellation ([`Functional::cancellation`]) at which the disordered state is
 /// solved in plain doubles rather than as an offset from a reference: probabilities to
@@ -187,6 +188,15 @@ impl<'a> Disordered<'a> {
     pub fn solve_for_stability(&self, t: f64) -> Result<(Functional<'a>, Vec<f64>), SolveError> {
         let (f, x) = self.solve(t)?;
         Ok(self.in_correlations(&f, &x).unwrap_or((f, x)))
+    }
+
+    /// `min_q λ_min(H(q))` over `qs` of the scaled stability matrix of the state at t,
+    /// taken as [`Disordered::solve_for_stability`] gives it (`None` where the state or
+    /// its matrix cannot be had).
+    pub fn lowest_stability(&self, lattice: &Lattice, t: f64, qs: &[Wavevector]) -> Option<f64> {
+        let (f, x) = self.solve_for_stability(t).ok()?;
+        let qh = QHessian::scaled(&f, lattice, &x, self.sector(), f.is_precise())?;
+        Some(qh.lowest_over(qs))
     }
 
     /// A state `x` of functional `f` (as [`Disordered::solve`] returns them) in the

@@ -34,7 +34,20 @@ use crate::thermo::{observables_at, Observables};
 pub const ORDER_EPSILON: f64 = 1e-7;
 
 /// Rounding scale of the scaled Hessian's eigenvalues (entries O(1)).
-const STABILITY_NOISE: f64 = 1e-12;
+pub(crate) const STABILITY_NOISE: f64 = 1e-12;
+
+/// Whether a stability `lowest` (scaled, see [`STABILITY_NOISE`]) found at `x` stays
+/// unresolved: within rounding of zero here and at x ± 10⁻⁶ max(|x|, 1) (`at` gives it
+/// there). A point where λ merely crosses zero (a grid point on a second-order line) is
+/// resolved a millionth away; at low T in a field a cluster approximation's symmetric
+/// state (a mixture of ordered domains) keeps λ at rounding over a whole range.
+pub(crate) fn unresolved_stability(lowest: f64, x: f64, at: impl Fn(f64) -> Option<f64>) -> bool {
+    let dx = 1e-6 * x.abs().max(1.0);
+    lowest.abs() <= STABILITY_NOISE
+        && ![x + dx, x - dx]
+            .iter()
+            .any(|&y| at(y).is_some_and(|l| l > STABILITY_NOISE))
+}
 
 /// Which branch a point is on.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -469,23 +482,6 @@ impl<'c> PhaseFollower<'c> {
         }
     }
 
-    /// The smallest scaled eigenvalue of the disordered state's H(q) over the cell's
-    /// wavevectors at t (`None` where it is not solved).
-    fn disordered_lowest(&mut self, t: f64) -> Option<f64> {
-        let (f, x) = self.disordered.solve(t).ok()?;
-        let view = self.disordered.in_correlations(&f, &x);
-        let (fq, xq) = view.as_ref().map_or((&f, &x[..]), |(g, y)| (g, &y[..]));
-        let sector = self.disordered.sector();
-        let qh = QHessian::scaled(fq, self.primitive_lattice, xq, sector, fq.is_precise())?;
-        Some(
-            self.cell
-                .wavevectors
-                .iter()
-                .map(|q| qh.lowest_value(q))
-                .fold(f64::INFINITY, f64::min),
-        )
-    }
-
     /// The disordered state at t, its free energy per site, its sublattice
     /// magnetisations on the cell, and whether it is stable at every wavevector the cell
     /// holds.
@@ -505,21 +501,13 @@ impl<'c> PhaseFollower<'c> {
         // The smallest scaled eigenvalue over the cell's wavevectors decides; within its
         // rounding the sign says nothing, and the disordered state stands unless an
         // ordered state is clearly lower in F.
-        let lowest = self
-            .cell
-            .wavevectors
-            .iter()
-            .map(|q| qh.lowest_value(q))
-            .fold(f64::INFINITY, f64::min);
+        let lowest = qh.lowest_over(&self.cell.wavevectors);
         let stable = lowest >= -STABILITY_NOISE || lowest.is_nan();
         let mut notes = Vec::new();
-        // At rounding: not where λ merely crosses zero (a grid point on a second-order
-        // line, resolved a millionth away), but where it stays there.
-        let at_rounding = lowest.abs() <= STABILITY_NOISE
-            && ![1.0 + 1e-6, 1.0 - 1e-6].iter().any(|k| {
-                self.disordered_lowest(k * t)
-                    .is_some_and(|l| l > STABILITY_NOISE)
-            });
+        let at_rounding = unresolved_stability(lowest, t, |tt| {
+            self.disordered
+                .lowest_stability(self.primitive_lattice, tt, &self.cell.wavevectors)
+        });
         if at_rounding {
             notes.push(format!(
                 "the stability of the disordered state is below double-precision resolution here (smallest scaled Hessian eigenvalue {lowest:.1e}): it is taken as stable unless an ordered state has a clearly lower free energy"

@@ -295,6 +295,14 @@ impl<'f> QHessian<'f> {
         }
     }
 
+    /// The smallest of [`QHessian::lowest_value`] over `qs`: `min_q λ_min(H(q))` (+∞ for
+    /// no wavevector).
+    pub fn lowest_over(&self, qs: &[Wavevector]) -> f64 {
+        qs.iter()
+            .map(|q| self.lowest_value(q))
+            .fold(f64::INFINITY, f64::min)
+    }
+
     /// The smallest eigenvalue of `H(q)` only.
     pub fn lowest_value(&self, q: &Wavevector) -> f64 {
         if self.block.vars.is_empty() {

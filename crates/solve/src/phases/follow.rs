@@ -26,7 +26,9 @@ use crate::disordered::Disordered;
 use crate::functional::{Basis, Block, Functional};
 use crate::linalg::positive_definite_real;
 use crate::ordering::amplitude;
-use crate::phase::{OrderedState, PhaseFollower, ORDER_EPSILON};
+use crate::phase::{
+    unresolved_stability, OrderedState, PhaseFollower, ORDER_EPSILON, STABILITY_NOISE,
+};
 use crate::qspace::{QHessian, Wavevector};
 
 /// Largest change of a sublattice magnetisation accepted in one step without halving.
@@ -34,9 +36,6 @@ pub const SMOOTH: f64 = 0.05;
 
 /// Halvings of a step before a change that does not shrink is called a jump.
 const MAX_HALVINGS: usize = 8;
-
-/// Rounding scale of the scaled Hessian's eigenvalues: within it a state is stable.
-const STABILITY_NOISE: f64 = 1e-12;
 
 /// One solved point of a branch (values per site).
 #[derive(Debug, Clone)]
@@ -124,36 +123,16 @@ impl<'s> DisorderedWalker<'s> {
         // In correlations where the field's flip basis would press the scaled spectrum
         // below its rounding (`Disordered::solve_for_stability`), as the sweep does.
         let (f, xs) = dis.solve_for_stability(t).ok()?;
-        let lowest = |f: &Functional, xs: &[f64]| {
-            QHessian::scaled(f, self.lattice, xs, dis.sector(), f.is_precise()).map(|qh| {
-                qs.unwrap_or(self.wavevectors)
-                    .iter()
-                    .map(|q| qh.lowest_value(q))
-                    .fold(f64::INFINITY, f64::min)
-            })
-        };
-        let stability = lowest(&f, &xs)?;
-        let unresolved = stability.abs() <= STABILITY_NOISE && {
-            let dx = 1e-6 * x.abs().max(1.0);
-            ![x + dx, x - dx].iter().any(|&y| {
-                let (ty, hy) = match self.along {
-                    Along::Temperature => (y, self.fixed),
-                    Along::Field => (self.fixed, y),
-                };
-                let other;
-                let d = match self.along {
-                    Along::Temperature => dis,
-                    Along::Field => {
-                        other = self.base.at_field(hy);
-                        &other
-                    }
-                };
-                d.solve_for_stability(ty)
-                    .ok()
-                    .and_then(|(g, ys)| lowest(&g, &ys))
-                    .is_some_and(|l| l > STABILITY_NOISE)
-            })
-        };
+        let qs = qs.unwrap_or(self.wavevectors);
+        let stability =
+            QHessian::scaled(&f, self.lattice, &xs, dis.sector(), f.is_precise())?.lowest_over(qs);
+        let unresolved = unresolved_stability(stability, x, |y| match self.along {
+            Along::Temperature => dis.lowest_stability(self.lattice, y, qs),
+            Along::Field => self
+                .base
+                .at_field(y)
+                .lowest_stability(self.lattice, self.fixed, qs),
+        });
         let ev = f.evaluate(&xs)?;
         let nb = f.level().sites_per_cell as f64;
         let m = f.site_magnetizations(&xs);
