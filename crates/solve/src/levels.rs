@@ -4,7 +4,9 @@
 //! Each level is built ([`prepare`]) as a dense [`Level`], or — when its clusters exceed
 //! [`MAX_MATERIALISED_SITES`] — only on point-group orbits ([`CompactLevel`]); then its
 //! Tc is searched ([`search`]) with [`crate::critical_temperature`] or, on orbits,
-//! [`crate::big::critical_temperature_compact`]. A level the engine refuses (too large)
+//! [`crate::big::critical_temperature_compact`]; a big level that is a rectangular block
+//! of a square net ([`RectBlock`]) is searched on its sub-blocks' potentials instead
+//! ([`crate::big::rect`]), without building its orbits. A level the engine refuses (too large)
 //! or whose search fails stays in the result as a row with its reason
 //! ([`TcOutcome`]); [`tc_levels`] fails only when no level gives a result at all.
 //!
@@ -22,6 +24,7 @@ use rayon::prelude::*;
 use rungs_lattice::{CompactLevel, Lattice, LatticeError, Level, MAX_MATERIALISED_SITES};
 use thiserror::Error;
 
+use crate::big::rect::RectBlock;
 use crate::functional::check_size;
 use crate::{critical_temperature_observed, CriticalPoint, SolveError, TcOptions};
 
@@ -105,7 +108,8 @@ pub struct LevelTc {
     /// Sites of the largest maximal cluster.
     pub max_cluster_sites: usize,
     /// Correlation variables of the level (translation classes on point-group orbits);
-    /// 0 when it could not be built.
+    /// for a rectangular block solved on region potentials, the potentials; 0 when it
+    /// could not be built.
     pub variables: usize,
     /// Wall-clock seconds: building the level and searching Tc.
     pub seconds: f64,
@@ -230,14 +234,20 @@ pub struct Prepared {
     /// built only on point-group orbits.
     pub compact: Option<CompactLevel>,
     /// Whether it is too large for the dense engine, so that its Tc is searched on
-    /// point-group orbits (uniform order only, slow).
+    /// point-group orbits or region potentials (uniform order only).
     pub big: bool,
+    /// A big level that is a rectangular block of a square net: searched on its
+    /// sub-blocks' potentials ([`crate::big::rect`]), its orbits not built.
+    pub rect: Option<RectBlock>,
 }
 
 impl Prepared {
     /// Correlation variables (translation classes on point-group orbits); 0 when the
     /// level could not be built.
     pub fn variables(&self) -> usize {
+        if let Some(rect) = &self.rect {
+            return rect.unknowns();
+        }
         match (&self.level, &self.compact) {
             (Ok(level), _) => level.variables.len(),
             (_, Some(compact)) => compact.translation_classes(),
@@ -252,7 +262,19 @@ impl Prepared {
 pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, LatticeError> {
     let start = Instant::now();
     let max_cluster_sites = Level::max_cluster_sites_of(lattice, name)?;
+    let rect = RectBlock::detect(lattice, name);
     if max_cluster_sites > MAX_MATERIALISED_SITES {
+        if let Some(rect) = rect {
+            return Ok(Prepared {
+                name: name.to_string(),
+                max_cluster_sites,
+                seconds: start.elapsed().as_secs_f64(),
+                level: Err("solved on its sub-blocks' potentials only".to_string()),
+                compact: None,
+                big: true,
+                rect: Some(rect),
+            });
+        }
         let (level, compact) = match CompactLevel::build(lattice, name) {
             Ok(c) => (Err("built on point-group orbits only".to_string()), Some(c)),
             Err(e @ LatticeError::CompactLimit { .. }) => (Err(e.to_string()), None),
@@ -265,6 +287,7 @@ pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, LatticeError> 
             level,
             compact,
             big: true,
+            rect: None,
         });
     }
     let level = match Level::build(lattice, name) {
@@ -280,6 +303,8 @@ pub fn prepare(lattice: &Lattice, name: &str) -> Result<Prepared, LatticeError> 
         level,
         compact: None,
         big,
+        // A big rectangular block (the 4×4 block) is searched on region potentials too.
+        rect: rect.filter(|_| big),
     })
 }
 
@@ -302,6 +327,31 @@ pub fn search(
         ..TcOptions::default()
     };
     let outcome = match (&p.level, &p.compact) {
+        _ if p.rect.is_some() => {
+            // The gauge-equivalent lattice of an antiferromagnet is a rectangle too.
+            let mut run = |l: &Lattice| {
+                let rect = RectBlock::detect(l, &p.name).ok_or_else(|| SolveError::TcSearch {
+                    level: p.name.clone(),
+                    detail: "the gauge-equivalent lattice is not a square net".into(),
+                })?;
+                let start = options
+                    .start_below
+                    .filter(|t| t.is_finite() && *t > 0.0)
+                    .unwrap_or_else(|| {
+                        crate::big::own_start(
+                            l,
+                            p.max_cluster_sites,
+                            crate::tc::mean_field_scale(l).max(1e-12),
+                        )
+                    });
+                crate::big::rect::critical_temperature_rect(
+                    l, &p.name, rect, options, start, observe,
+                )
+            };
+            outcome_of(crate::tc::big_level_search(
+                lattice, &p.name, options, &mut run,
+            ))
+        }
         (_, Some(compact)) => {
             // The prepared compact level serves the lattice as given; its
             // gauge-equivalent lattice (antiferromagnets) gets its own.
@@ -406,9 +456,9 @@ pub fn tc_levels(
     Ok(rows)
 }
 
-/// Clusters from this many sites up are announced as long work: the 5×5 block (25
-/// sites, 31.5 million variables) takes hours on a laptop (docs/long-validations.md), the
-/// 4×4 block (16 sites) seconds.
+/// Clusters from this many sites up are announced as long work: on point-group orbits
+/// a 24-site cluster takes hours, the 5×5 block on region potentials minutes
+/// (docs/benchmarks.md), the 4×4 block (16 sites) seconds.
 const LONG_SEARCH_SITES: usize = 24;
 
 /// The first stage of a level's search, as shown: a big level says it is solved on
@@ -418,7 +468,22 @@ pub fn search_stage(p: &Prepared) -> String {
     if !p.big {
         return "Tc search".into();
     }
+    if p.rect.is_some() {
+        return rect_search_stage(p.max_cluster_sites);
+    }
     big_search_stage(p.max_cluster_sites, p.variables())
+}
+
+/// [`search_stage`] of a rectangular block solved on region potentials: one of
+/// `LONG_SEARCH_SITES` sites or more says it takes minutes (measured in
+/// docs/benchmarks.md).
+fn rect_search_stage(sites: usize) -> String {
+    if sites >= LONG_SEARCH_SITES {
+        return format!(
+            "Tc search on sub-block potentials ({sites}-site blocks, 2^{sites} states: expect minutes)"
+        );
+    }
+    "Tc search on sub-block potentials".into()
 }
 
 /// [`search_stage`] of a big level with clusters of `sites` sites and `variables`
@@ -564,11 +629,21 @@ mod tests {
         let plaquette = prepare(&lattice, "plaquette").unwrap();
         assert_eq!(search_stage(&plaquette), "Tc search");
         let block4 = prepare(&lattice.with_block_level("b4", [4, 4, 1]).unwrap(), "b4").unwrap();
-        assert_eq!(search_stage(&block4), "Tc search on point-group orbits");
-        // The 5×5 block: 31,522,816 translation classes (the lattice crate's count).
-        let five = big_search_stage(25, 31_522_816);
-        assert!(five.contains("31.5 million variables"), "{five}");
-        assert!(five.contains("expect hours"), "{five}");
+        assert_eq!(search_stage(&block4), "Tc search on sub-block potentials");
+        // The 5×5 block is a rectangle: minutes, its orbits never built.
+        let b5 = lattice.with_block_level("b5", [5, 5, 1]).unwrap();
+        let five = prepare(&b5, "b5").unwrap();
+        assert!(five.rect.is_some() && five.compact.is_none());
+        assert!(
+            search_stage(&five).contains("expect minutes"),
+            "{}",
+            search_stage(&five)
+        );
+        // A 25-site cluster on point-group orbits: 31,522,816 translation classes for
+        // the 5×5 block (the lattice crate's count).
+        let orbits = big_search_stage(25, 31_522_816);
+        assert!(orbits.contains("31.5 million variables"), "{orbits}");
+        assert!(orbits.contains("expect hours"), "{orbits}");
     }
 
     #[test]

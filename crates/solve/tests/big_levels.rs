@@ -209,34 +209,10 @@ fn square_block5() -> (rungs_lattice::Lattice, CompactLevel) {
     (l, c)
 }
 
-/// The 5×5 block: 2^25 states per cluster, 3,956,995 orbit variables. Hours on two
-/// cores with the present preconditioner (see docs/long-validations.md):
-/// `cargo test --release -p rungs-solve --test big_levels -- --ignored square_block5_lies`
-#[test]
-#[ignore]
-fn square_block5_lies_between_onsager_and_the_4x4_block() {
-    // Onsager (1944), Phys. Rev. 65, 117: Tc = 2/ln(1+√2) bounds the ladder below; the
-    // block sequence must be monotone (4×4: BLOCK4_TC, this project's value above).
-    let (l, c) = square_block5();
-    let options = TcOptions {
-        start_below: Some(BLOCK4_TC),
-        ..TcOptions::default()
-    };
-    let cp = critical_temperature_compact(&l, &c, options).unwrap();
-    let t5 = cp.tc.unwrap();
-    // The measured values go to docs/long-validations.md.
-    eprintln!(
-        "5×5 block: Tc = {t5:.10}, χ̄ = {:?}, {:.0} s",
-        cp.amplitude, cp.seconds
-    );
-    assert!(onsager_tc() < t5 && t5 < BLOCK4_TC, "{t5}");
-    assert!(cp.amplitude.unwrap() > 7.5);
-}
-
-/// The 5×5 block's Tc bracketed by two probes instead of searched: the paramagnet is
-/// stable against uniform order at the 4×4 block's Tc (smallest odd-sector eigenvalue
-/// λ > 0) and unstable at Onsager's (λ < 0), so the 5×5 Tc lies between them. Two
-/// probes of the full search's many (see docs/long-validations.md):
+/// The 5×5 block's Tc bracketed on point-group orbits, independently of the region
+/// path that computes it (crates/solve/tests/rect_blocks.rs): the paramagnet is stable
+/// against uniform order at the 4×4 block's Tc (smallest odd-sector eigenvalue λ > 0)
+/// and unstable at Onsager's (λ < 0). Hours (see docs/long-validations.md):
 /// `cargo test --release -p rungs-solve --test big_levels -- --ignored square_block5_bracket`
 #[test]
 #[ignore]

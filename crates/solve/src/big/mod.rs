@@ -8,7 +8,9 @@
 //!   one step-down and Brent search of [`crate::search`];
 //! * [`thermo`]: m, U, F, S, C, χ of point-group-symmetric phases, C and χ from CG
 //!   solves;
-//! * [`orbit_dense`]: the earlier dense orbit-reduced path, kept for comparison.
+//! * [`orbit_dense`]: the earlier dense orbit-reduced path, kept for comparison;
+//! * [`rect`]: rectangular blocks of a square net on their sub-blocks' potentials (a
+//!   region fixed point, no orbits), the path of `tc` and the ladder for such blocks.
 //!
 //! Only point-group-symmetric states and modes are reached here: the paramagnet,
 //! uniform order and states in a uniform field. The critical mode searched is the
@@ -17,6 +19,7 @@
 pub mod model;
 pub mod newton;
 pub mod orbit_dense;
+pub mod rect;
 pub mod search;
 pub mod thermo;
 
@@ -68,7 +71,7 @@ pub fn compact_level(lattice: &Lattice, name: &str) -> Result<CompactLevel, Solv
 /// for the 4×4 block; at least the pair level, Bethe), found in milliseconds. For a
 /// ferromagnet it lies above the Tc of larger clusters; the search steps up if it does
 /// not. The mean-field Tc when no smaller level orders.
-fn own_start(lattice: &Lattice, sites: usize, scale: f64) -> f64 {
+pub(crate) fn own_start(lattice: &Lattice, sites: usize, scale: f64) -> f64 {
     let mut smaller: Vec<(usize, String)> = Level::names(lattice)
         .into_iter()
         .filter(|n| n != "site")
