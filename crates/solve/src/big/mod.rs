@@ -183,6 +183,26 @@ pub fn critical_temperature_compact(
     })
 }
 
+/// Make room in a history of solutions kept for warm starts: with `keep` or more
+/// entries, drop the one whose temperature (`temperature`) lies farthest from `t`.
+pub(crate) fn drop_farthest<E>(
+    history: &mut Vec<E>,
+    keep: usize,
+    t: f64,
+    temperature: impl Fn(&E) -> f64,
+) {
+    if history.len() < keep {
+        return;
+    }
+    if let Some(far) = (0..history.len()).max_by(|&i, &j| {
+        (temperature(&history[i]) - t)
+            .abs()
+            .total_cmp(&(temperature(&history[j]) - t).abs())
+    }) {
+        history.swap_remove(far);
+    }
+}
+
 /// Levels shared by the unit tests of the big-level modules.
 #[cfg(test)]
 pub(crate) mod test_levels {

@@ -741,54 +741,25 @@ impl RectSolver {
             *o = xv[k] + (m.right[k] / m.left[k]).ln();
         });
         if self.h == 0.0 {
-            self.symmetrise(out);
+            self.project(out, 1.0);
         }
         Ok(())
     }
 
-    /// At h = 0, the even part of every table (`f(x) ← ½(f(x) + f(x̄))`, x̄ every spin
-    /// flipped): spin-flip symmetry held exactly, so that rounding cannot seed order
-    /// below Tc, where the paramagnet is a saddle.
-    fn symmetrise(&self, v: &mut [f64]) {
-        let l = self.layout;
-        for (range, bits) in [
-            (l.g_h(), l.nh),
-            (l.d_h(), l.nh),
-            (l.g_v(), l.nv),
-            (l.d_v(), l.nv),
-            (l.g_s(), l.ns),
-        ] {
+    /// At h = 0, the even (`sign` = 1) or odd (`sign` = −1) part of every table,
+    /// `f(x) ← ½(f(x) + sign·f(x̄))`, x̄ every spin flipped. Even: spin-flip symmetry held
+    /// exactly, so that rounding cannot seed order below Tc, where the paramagnet is a
+    /// saddle; odd: the field's response.
+    fn project(&self, v: &mut [f64], sign: f64) {
+        for (range, bits) in self.layout.parts() {
             let part = &mut v[range];
             let full = (1usize << bits) - 1;
             for i in 0..part.len() {
                 let j = i ^ full;
                 if i < j {
-                    let a = 0.5 * (part[i] + part[j]);
+                    let a = 0.5 * (part[i] + sign * part[j]);
                     part[i] = a;
-                    part[j] = a;
-                }
-            }
-        }
-    }
-
-    /// At h = 0, the odd part of every table: the field's response is odd.
-    fn antisymmetrise(&self, v: &mut [f64]) {
-        let l = self.layout;
-        for (range, bits) in [
-            (l.g_h(), l.nh),
-            (l.d_h(), l.nh),
-            (l.g_v(), l.nv),
-            (l.d_v(), l.nv),
-            (l.g_s(), l.ns),
-        ] {
-            let part = &mut v[range];
-            let full = (1usize << bits) - 1;
-            for i in 0..part.len() {
-                let j = i ^ full;
-                if i < j {
-                    let a = 0.5 * (part[i] - part[j]);
-                    part[i] = a;
-                    part[j] = -a;
+                    part[j] = sign * a;
                 }
             }
         }
@@ -898,7 +869,7 @@ impl RectSolver {
             out[i] = v[i] + dr[k] / m.right[k] - dl[k] / m.left[k];
         }
         if self.h == 0.0 {
-            self.antisymmetrise(out);
+            self.project(out, -1.0);
         }
         if let Some(dm) = dm {
             *dm = dp_s.iter().enumerate().map(|(i, d)| d * spin(i, 0)).sum();
@@ -1238,15 +1209,7 @@ impl RectProbe {
         if !v.is_finite() {
             return Err(self.solver.failure("the susceptibility is not finite"));
         }
-        if self.history.len() >= 4 {
-            if let Some(far) = (0..self.history.len()).max_by(|&i, &j| {
-                (self.history[i].0 - t)
-                    .abs()
-                    .total_cmp(&(self.history[j].0 - t).abs())
-            }) {
-                self.history.swap_remove(far);
-            }
-        }
+        super::drop_farthest(&mut self.history, 4, t, |h| h.0);
         self.history.push((t, x, v));
         Ok(v)
     }

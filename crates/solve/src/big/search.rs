@@ -147,16 +147,7 @@ impl<'a> SymmetricProbe<'a> {
             }
         };
         self.products += sol.products;
-        if self.history.len() >= 4 {
-            // Drop the temperature farthest from this one.
-            if let Some(far) = (0..self.history.len()).max_by(|&i, &j| {
-                (self.history[i].0 - t)
-                    .abs()
-                    .total_cmp(&(self.history[j].0 - t).abs())
-            }) {
-                self.history.swap_remove(far);
-            }
-        }
+        super::drop_farthest(&mut self.history, 4, t, |h| h.0);
         self.history.push((t, sol.x.clone()));
         Ok(sol.x)
     }
