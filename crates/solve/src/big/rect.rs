@@ -364,11 +364,6 @@ impl RectSolver {
             .collect();
     }
 
-    /// The block.
-    pub fn block(&self) -> RectBlock {
-        self.block
-    }
-
     /// Length of the unknown vector.
     pub fn len(&self) -> usize {
         self.layout.len()
@@ -774,7 +769,8 @@ impl RectSolver {
         tolerance: f64,
     ) -> Result<(Vec<f64>, f64, usize), SolveError> {
         let (m, e, z) = self.marginals(x)?;
-        let base = Base { m, e, z };
+        let p_s = self.corners(&m.top, &m.bottom);
+        let base = Base { m, p_s, e, z };
         let n = self.len();
         let mut dx = start.map_or_else(|| vec![0.0; n], <[f64]>::to_vec);
         let mut iterations = 0;
@@ -835,7 +831,7 @@ impl RectSolver {
             delta(&d.left, &m.left),
             delta(&d.right, &m.right),
         );
-        let p_s = self.corners(&m.top, &m.bottom);
+        let p_s = &base.p_s;
         let dp_s = self.corners(&dt_, &db);
         let centre = |v: &mut [f64]| {
             let mean = v.iter().sum::<f64>() / v.len() as f64;
@@ -897,18 +893,13 @@ impl RectSolver {
             }),
         }
     }
-
-    /// m = ⟨σ⟩ of the fixed point `x`.
-    pub fn magnetisation(&mut self, x: &[f64]) -> Result<f64, SolveError> {
-        let (m, _, _) = self.marginals(x)?;
-        let p_s = self.corners(&m.top, &m.bottom);
-        Ok(p_s.iter().enumerate().map(|(i, p)| p * spin(i, 0)).sum())
-    }
 }
 
 /// A fixed point's pass, kept for its linear responses.
 struct Base {
     m: Marginals,
+    /// The S marginal of `m` (the corners' average).
+    p_s: Vec<f64>,
     /// The exponentiated tables of its pass.
     e: Tables,
     z: f64,
