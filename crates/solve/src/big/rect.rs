@@ -166,7 +166,55 @@ fn drop_column(rows: usize, cols: usize, state: usize, first: usize) -> usize {
     out
 }
 
-/// Sums of one pass: the normaliser and the four sub-block marginals (unnormalised).
+/// The weights of one row of a pass, the states (hi, q) for q < 2^C at fixed hi:
+/// `w[q] = wb·top[q]·left[q mod 2^{C−1}]·right[q >> 1]` (the slices start at the row's
+/// entries). Written over slices of known length so that the loops vectorise.
+fn row_weights(wb: f64, top: &[f64], left: &[f64], right: &[f64], w: &mut [f64]) {
+    let half = left.len();
+    let (lo, hi) = w.split_at_mut(half);
+    let (t_lo, t_hi) = top.split_at(half);
+    for (q, ((w, t), l)) in lo.iter_mut().zip(t_lo).zip(left).enumerate() {
+        *w = wb * t * l * right[q >> 1];
+    }
+    for (q, ((w, t), l)) in hi.iter_mut().zip(t_hi).zip(left).enumerate() {
+        *w = wb * t * l * right[(half + q) >> 1];
+    }
+}
+
+/// A linear pass's row: `wd[q] = w[q]·(db + top[q] + left[q mod 2^{C−1}] + right[q >> 1])`.
+fn row_changes(w: &[f64], db: f64, top: &[f64], left: &[f64], right: &[f64], wd: &mut [f64]) {
+    let half = left.len();
+    for (q, ((wd, w), t)) in wd.iter_mut().zip(w).zip(top).enumerate() {
+        *wd = w * (db + t + left[q % half] + right[q >> 1]);
+    }
+}
+
+/// Adds a row's weights to the top, left and right marginals (`top[q] += w[q]`,
+/// `left[j] += w[j] + w[j + 2^{C−1}]`, `right[j] += w[2j] + w[2j + 1]`); returns their sum.
+fn row_scatter(w: &[f64], top: &mut [f64], left: &mut [f64], right: &mut [f64]) -> f64 {
+    let half = left.len();
+    let (lo, hi) = w.split_at(half);
+    for ((l, a), b) in left.iter_mut().zip(lo).zip(hi) {
+        *l += a + b;
+    }
+    // Two sums, so that the additions of a row do not wait on each other.
+    let mut z = [0.0; 2];
+    for (r, quad) in right.chunks_exact_mut(2).zip(w.chunks_exact(4)) {
+        let (s0, s1) = (quad[0] + quad[1], quad[2] + quad[3]);
+        r[0] += s0;
+        r[1] += s1;
+        z[0] += s0;
+        z[1] += s1;
+    }
+    for (t, a) in top.iter_mut().zip(w) {
+        *t += a;
+    }
+    z[0] + z[1]
+}
+
+/// Sums of one pass: the normaliser and the four sub-block marginals (unnormalised, or
+/// normalised once a pass's sums become the block distribution's marginals).
+#[derive(Clone, Default)]
 struct Sums {
     z: f64,
     top: Vec<f64>,
@@ -184,6 +232,14 @@ impl Sums {
             left: vec![0.0; 1 << nv],
             right: vec![0.0; 1 << nv],
         }
+    }
+
+    /// Sized for `nh`- and `nv`-bit sub-blocks, kept allocated between passes.
+    fn fit(&mut self, nh: usize, nv: usize) {
+        fit(&mut self.top, 1 << nh);
+        fit(&mut self.bottom, 1 << nh);
+        fit(&mut self.left, 1 << nv);
+        fit(&mut self.right, 1 << nv);
     }
 
     fn clear(&mut self) {
@@ -214,8 +270,54 @@ impl Sums {
     }
 }
 
+/// A work vector of length `n`, its allocation kept when it already has that length (the
+/// 5×5 block's passes would otherwise map ~130 MB of fresh pages each).
+fn fit(v: &mut Vec<f64>, n: usize) {
+    if v.len() != n {
+        v.clear();
+        v.resize(n, 0.0);
+    }
+}
+
+/// `v[i] = f(i)` in parallel; with `mirror` (h = 0, where every table is even or odd under
+/// flipping every spin, `i ↦ i ^ (len − 1)`), only the first half is computed and the
+/// second is its mirror image, `v[len − 1 − i] = sign·v[i]`, exactly as the full
+/// computation gives it (the same operations on the same numbers) at half the `exp`s
+/// and `ln`s.
+fn fill(v: &mut [f64], mirror: Option<f64>, f: impl Fn(usize) -> f64 + Sync) {
+    match mirror {
+        None => v.par_iter_mut().enumerate().for_each(|(i, o)| *o = f(i)),
+        Some(sign) => {
+            let half = v.len() / 2;
+            let (a, b) = v.split_at_mut(half);
+            a.par_iter_mut().enumerate().for_each(|(i, o)| *o = f(i));
+            b.par_iter_mut()
+                .zip(a.par_iter().rev())
+                .for_each(|(o, v)| *o = sign * v);
+        }
+    }
+}
+
+/// At h = 0, the even (`sign` = 1) or odd (`sign` = −1) part of a table,
+/// `f(x) ← ½(f(x) + sign·f(x̄))`, x̄ every spin flipped (`x̄ = len − 1 − x`). Even:
+/// spin-flip symmetry held exactly, so that rounding cannot seed order below Tc, where the
+/// paramagnet is a saddle; odd: the field's response. (The tables [`fill`] mirrors are
+/// exactly even or odd already; this is for the rest.)
+fn project_part(part: &mut [f64], sign: f64) {
+    let half = part.len() / 2;
+    let (a, b) = part.split_at_mut(half);
+    a.par_iter_mut()
+        .zip(b.par_iter_mut().rev())
+        .for_each(|(x, y)| {
+            let m = 0.5 * (*x + sign * *y);
+            *x = m;
+            *y = sign * m;
+        });
+}
+
 /// The four look-up tables of a pass: `ln p_B(s) + ln Z − shift` is
 /// `top[top s] + bottom[bottom s] + left[left s] + right[right s]`.
+#[derive(Clone, Default)]
 struct Tables {
     top: Vec<f64>,
     bottom: Vec<f64>,
@@ -285,16 +387,19 @@ pub struct RectSolver {
     sums: Vec<Sums>,
     /// Work sums of a linear pass (the block distribution times δ ln p).
     dsums: Vec<Sums>,
+    /// The last pass's sums gathered over the chunks (normalised by [`Self::marginals`]),
+    /// and those of its linear part.
+    all: Sums,
+    dall: Sums,
+    /// Work tables of a pass: logarithms, their exponentials, a linear pass's direction.
+    logs: Tables,
+    exps: Tables,
+    dlogs: Tables,
+    /// Work S marginal and its change.
+    p_s: Vec<f64>,
+    dp_s: Vec<f64>,
     /// Passes over the block states done.
     pub passes: usize,
-}
-
-/// The block distribution's marginals after a pass, normalised.
-struct Marginals {
-    top: Vec<f64>,
-    bottom: Vec<f64>,
-    left: Vec<f64>,
-    right: Vec<f64>,
 }
 
 impl RectSolver {
@@ -322,6 +427,13 @@ impl RectSolver {
             ],
             sums: Vec::new(),
             dsums: Vec::new(),
+            all: Sums::default(),
+            dall: Sums::default(),
+            logs: Tables::default(),
+            exps: Tables::default(),
+            dlogs: Tables::default(),
+            p_s: Vec::new(),
+            dp_s: Vec::new(),
             passes: 0,
         };
         solver.set(t, h);
@@ -374,9 +486,9 @@ impl RectSolver {
         false
     }
 
-    /// The tables of `x` (with the block energy when `energy`, else without: a linear
-    /// pass's direction), and for a linear pass the field's direction `dh`.
-    fn tables(&self, x: &[f64], energy: bool, dh: f64) -> Tables {
+    /// The tables of `x` into `out` (with the block energy when `energy`, else without: a
+    /// linear pass's direction), and for a linear pass the field's direction `dh`.
+    fn tables(&self, x: &[f64], energy: bool, dh: f64, out: &mut Tables) {
         let l = self.layout;
         let (g_h, d_h, g_v, d_v, g_s) = (
             &x[l.g_h()],
@@ -391,40 +503,28 @@ impl RectSolver {
         let corner = |i: usize| {
             0.25 * (g_s[self.h_corner[0][i] as usize] + g_s[self.h_corner[1][i] as usize])
         };
-        let top: Vec<f64> = (0..1usize << nh)
-            .into_par_iter()
-            .map(|i| {
-                let mut v = 0.5 * (g_h[i] + d_h[i]) - corner(i);
-                if energy {
-                    v -= beta * self.e_h[i];
-                }
-                v + dh * beta * spin_sum(nh, i)
-            })
-            .collect();
-        let bottom: Vec<f64> = (0..1usize << nh)
-            .into_par_iter()
-            .map(|i| {
-                let mut v = 0.5 * (g_h[i] - d_h[i]) - corner(i);
-                if energy {
-                    v -= beta * self.e_last[i];
-                }
-                v + dh * beta * spin_sum(c, i >> (nh - c))
-            })
-            .collect();
-        let left: Vec<f64> = (0..1usize << l.nv)
-            .into_par_iter()
-            .map(|i| 0.5 * (g_v[i] + d_v[i]))
-            .collect();
-        let right: Vec<f64> = (0..1usize << l.nv)
-            .into_par_iter()
-            .map(|i| 0.5 * (g_v[i] - d_v[i]))
-            .collect();
-        Tables {
-            top,
-            bottom,
-            left,
-            right,
-        }
+        fit(&mut out.top, 1 << nh);
+        fit(&mut out.bottom, 1 << nh);
+        fit(&mut out.left, 1 << l.nv);
+        fit(&mut out.right, 1 << l.nv);
+        // Even tables at h = 0; a linear pass's direction is odd.
+        let mirror = (self.h == 0.0).then_some(if energy { 1.0 } else { -1.0 });
+        fill(&mut out.top, mirror, |i| {
+            let mut v = 0.5 * (g_h[i] + d_h[i]) - corner(i);
+            if energy {
+                v -= beta * self.e_h[i];
+            }
+            v + dh * beta * spin_sum(nh, i)
+        });
+        fill(&mut out.bottom, mirror, |i| {
+            let mut v = 0.5 * (g_h[i] - d_h[i]) - corner(i);
+            if energy {
+                v -= beta * self.e_last[i];
+            }
+            v + dh * beta * spin_sum(c, i >> (nh - c))
+        });
+        fill(&mut out.left, mirror, |i| 0.5 * (g_v[i] + d_v[i]));
+        fill(&mut out.right, mirror, |i| 0.5 * (g_v[i] - d_v[i]));
     }
 
     /// One pass over the block states: `Σ_s w(s)` and the four marginals of
@@ -436,7 +536,8 @@ impl RectSolver {
     /// run over short contiguous stretches. At h = 0 the tables are even (`dt` odd)
     /// under flipping every spin, so only the states with the last spin up are visited
     /// and each marginal is completed from its mirror image: `M(x) = M½(x) ± M½(x̄)`.
-    fn pass(&mut self, e: &Tables, dt: Option<&Tables>) -> (Sums, Option<Sums>) {
+    /// The sums land in `self.all` (a linear pass's in `self.dall` only).
+    fn pass(&mut self, e: &Tables, dt: Option<&Tables>) {
         let b = self.block;
         let (r, c) = (b.rows, b.cols);
         let n = b.sites();
@@ -454,45 +555,47 @@ impl RectSolver {
         };
         let per = his.div_ceil(chunks);
         let low = 1usize << c;
-        let lm = (1usize << (c - 1)) - 1;
+        let half = low / 2;
         let top_hi = (1usize << ((r - 2) * c)) - 1;
-        let work = |k: usize, sums: &mut Sums, dsums: Option<&mut Sums>| {
+        // A chunk of the states: its sums of w (plain pass) or of w·δ (linear pass).
+        let work = |k: usize, sums: &mut Sums| {
             sums.clear();
-            let mut dsums = dsums;
-            if let Some(d) = dsums.as_deref_mut() {
-                d.clear();
-            }
+            let (mut w, mut wd) = (vec![0.0; low], vec![0.0; low]);
             let range = k * per..((k + 1) * per).min(his);
             for (hi, &wb) in eb.iter().enumerate().take(range.end).skip(range.start) {
                 let tb = (hi & top_hi) << c;
                 let lb = drop_column(r - 1, c, hi, 0) << (c - 1);
                 let rb = drop_column(r - 1, c, hi, 1) << (c - 1);
-                let mut zb = 0.0;
-                for q in 0..low {
-                    let (it, il, ir) = (tb | q, lb | (q & lm), rb | (q >> 1));
-                    let w = wb * et[it] * el[il] * er[ir];
-                    zb += w;
-                    sums.top[it] += w;
-                    sums.left[il] += w;
-                    sums.right[ir] += w;
-                }
+                let (t, lr) = ((tb, tb + low), ((lb, lb + half), (rb, rb + half)));
+                row_weights(
+                    wb,
+                    &et[t.0..t.1],
+                    &el[lr.0 .0..lr.0 .1],
+                    &er[lr.1 .0..lr.1 .1],
+                    &mut w,
+                );
+                let add = match dt {
+                    None => &w,
+                    Some(d) => {
+                        row_changes(
+                            &w,
+                            d.bottom[hi],
+                            &d.top[t.0..t.1],
+                            &d.left[lr.0 .0..lr.0 .1],
+                            &d.right[lr.1 .0..lr.1 .1],
+                            &mut wd,
+                        );
+                        &wd
+                    }
+                };
+                let zb = row_scatter(
+                    add,
+                    &mut sums.top[t.0..t.1],
+                    &mut sums.left[lr.0 .0..lr.0 .1],
+                    &mut sums.right[lr.1 .0..lr.1 .1],
+                );
                 sums.bottom[hi] += zb;
                 sums.z += zb;
-                if let (Some(d), Some(dt)) = (dsums.as_deref_mut(), dt) {
-                    let db = dt.bottom[hi];
-                    let mut zd = 0.0;
-                    for q in 0..low {
-                        let (it, il, ir) = (tb | q, lb | (q & lm), rb | (q >> 1));
-                        let w = wb * et[it] * el[il] * er[ir];
-                        let wd = w * (db + dt.top[it] + dt.left[il] + dt.right[ir]);
-                        zd += wd;
-                        d.top[it] += wd;
-                        d.left[il] += wd;
-                        d.right[ir] += wd;
-                    }
-                    d.bottom[hi] += zd;
-                    d.z += zd;
-                }
             }
         };
         match dt {
@@ -500,55 +603,54 @@ impl RectSolver {
                 .sums
                 .par_iter_mut()
                 .enumerate()
-                .for_each(|(k, s)| work(k, s, None)),
+                .for_each(|(k, s)| work(k, s)),
             Some(_) => self
-                .sums
+                .dsums
                 .par_iter_mut()
-                .zip(self.dsums.par_iter_mut())
                 .enumerate()
-                .for_each(|(k, (s, d))| work(k, s, Some(d))),
+                .for_each(|(k, d)| work(k, d)),
         }
         self.passes += 1;
-        let gather = |parts: &[Sums], sign: f64| {
-            let mut all = Sums::new(l.nh, l.nv);
+        let gather = |parts: &[Sums], all: &mut Sums, sign: f64| {
+            all.fit(l.nh, l.nv);
+            all.clear();
             for s in parts {
                 all.add(s);
             }
             if symmetric {
                 all.z = if sign > 0.0 { 2.0 * all.z } else { 0.0 };
-                for (v, bits) in [
-                    (&mut all.top, l.nh),
-                    (&mut all.bottom, l.nh),
-                    (&mut all.left, l.nv),
-                    (&mut all.right, l.nv),
-                ] {
-                    let full = (1usize << bits) - 1;
-                    for i in 0..v.len() {
-                        let j = i ^ full;
-                        if i < j {
-                            let (a, b) = (v[i], v[j]);
-                            v[i] = a + sign * b;
-                            v[j] = b + sign * a;
-                        }
-                    }
+                for v in [&mut all.top, &mut all.bottom, &mut all.left, &mut all.right] {
+                    // x and x̄ = len − 1 − x: the two halves, one of them reversed.
+                    let middle = v.len() / 2;
+                    let (lo, hi) = v.split_at_mut(middle);
+                    lo.par_iter_mut()
+                        .zip(hi.par_iter_mut().rev())
+                        .for_each(|(a, b)| (*a, *b) = (*a + sign * *b, *b + sign * *a));
                 }
             }
-            all
         };
-        let all = gather(&self.sums, 1.0);
-        let dall = dt.map(|_| gather(&self.dsums, -1.0));
-        (all, dall)
+        match dt {
+            None => gather(&self.sums, &mut self.all, 1.0),
+            Some(_) => gather(&self.dsums, &mut self.dall, -1.0),
+        }
     }
 
     /// The even (`odd`: odd) half of a full unknown vector at h = 0: each table's
     /// entries whose last spin is up.
     fn reduce(&self, full: &[f64]) -> Vec<f64> {
-        let l = self.layout;
-        let mut out = Vec::with_capacity(full.len() / 2);
-        for (range, bits) in l.parts() {
-            out.extend_from_slice(&full[range.start..range.start + (1 << (bits - 1))]);
-        }
+        let mut out = vec![0.0; full.len() / 2];
+        self.reduce_into(full, &mut out);
         out
+    }
+
+    /// [`Self::reduce`] into `out`.
+    fn reduce_into(&self, full: &[f64], out: &mut [f64]) {
+        let mut at = 0;
+        for (range, bits) in self.layout.parts() {
+            let m = 1usize << (bits - 1);
+            out[at..at + m].copy_from_slice(&full[range.start..range.start + m]);
+            at += m;
+        }
     }
 
     /// The full vector of a half one ([`Self::reduce`]): `f(x̄) = ±f(x)`.
@@ -602,7 +704,7 @@ impl RectSolver {
             &mut |v: &[f64], o: &mut [f64]| {
                 self.expand(v, odd, &mut full);
                 apply(self, &full, &mut out)?;
-                o.copy_from_slice(&self.reduce(&out));
+                self.reduce_into(&out, o);
                 Ok(())
             },
             &mut half,
@@ -614,20 +716,22 @@ impl RectSolver {
         result
     }
 
-    /// The exponentiated tables of a pass: their product over a state's four sub-blocks
-    /// is `exp(ln p(s) + ln Z − shift)`; each table is shifted by its own largest entry
-    /// (the last by the rest of `shift`), so no entry overflows.
-    fn exponentiate(t: &Tables, shift: f64) -> Tables {
+    /// The exponentiated tables of a pass into `out`: their product over a state's four
+    /// sub-blocks is `exp(ln p(s) + ln Z − shift)`; each table is shifted by its own
+    /// largest entry (the last by the rest of `shift`), so no entry overflows.
+    fn exponentiate(t: &Tables, shift: f64, symmetric: bool, out: &mut Tables) {
         let max = |v: &[f64]| v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
         let (mt, mb, ml) = (max(&t.top), max(&t.bottom), max(&t.left));
         let mr = shift - mt - mb - ml;
-        let ex = |v: &[f64], m: f64| -> Vec<f64> { v.par_iter().map(|a| (a - m).exp()).collect() };
-        Tables {
-            top: ex(&t.top, mt),
-            bottom: ex(&t.bottom, mb),
-            left: ex(&t.left, ml),
-            right: ex(&t.right, mr),
-        }
+        let mirror = symmetric.then_some(1.0);
+        let ex = |v: &[f64], o: &mut Vec<f64>, m: f64| {
+            fit(o, v.len());
+            fill(o, mirror, |i| (v[i] - m).exp());
+        };
+        ex(&t.top, &mut out.top, mt);
+        ex(&t.bottom, &mut out.bottom, mb);
+        ex(&t.left, &mut out.left, ml);
+        ex(&t.right, &mut out.right, mr);
     }
 
     /// The shift that keeps every `exp` of a pass finite: the tables' largest sum.
@@ -636,33 +740,37 @@ impl RectSolver {
         max(&t.top) + max(&t.bottom) + max(&t.left) + max(&t.right)
     }
 
-    /// The normalised marginals of the block distribution of `x` (one pass), the
-    /// exponentiated tables of that pass and their sum over the states, Z.
-    fn marginals(&mut self, x: &[f64]) -> Result<(Marginals, Tables, f64), SolveError> {
-        let t = self.tables(x, true, 0.0);
+    /// The block distribution of `x` (one pass): its normalised marginals into
+    /// `self.all`, the pass's exponentiated tables into `self.exps`; returns their sum
+    /// over the states, Z.
+    fn marginals(&mut self, x: &[f64]) -> Result<f64, SolveError> {
+        let mut t = std::mem::take(&mut self.logs);
+        let mut e = std::mem::take(&mut self.exps);
+        self.tables(x, true, 0.0, &mut t);
         let shift = Self::shift(&t);
-        let mut e = Self::exponentiate(&t, shift);
-        let (mut s, _) = self.pass(&e, None);
-        if s.z > 0.0 && s.z < 1e-200 {
+        let symmetric = self.h == 0.0;
+        Self::exponentiate(&t, shift, symmetric, &mut e);
+        self.pass(&e, None);
+        if self.all.z > 0.0 && self.all.z < 1e-200 {
             // The bound was far above the true largest term: once more, shifted by ln Z.
-            e = Self::exponentiate(&t, shift + s.z.ln());
-            s = self.pass(&e, None).0;
+            Self::exponentiate(&t, shift + self.all.z.ln(), symmetric, &mut e);
+            self.pass(&e, None);
         }
-        if !(s.z > 0.0 && s.z.is_finite()) {
+        self.logs = t;
+        self.exps = e;
+        let z = self.all.z;
+        if !(z > 0.0 && z.is_finite()) {
             return Err(self.failure("the block distribution cannot be normalised"));
         }
-        let z = s.z;
-        let norm = |v: Vec<f64>| v.into_iter().map(|a| a / z).collect::<Vec<f64>>();
-        Ok((
-            Marginals {
-                top: norm(s.top),
-                bottom: norm(s.bottom),
-                left: norm(s.left),
-                right: norm(s.right),
-            },
-            e,
-            z,
-        ))
+        for v in [
+            &mut self.all.top,
+            &mut self.all.bottom,
+            &mut self.all.left,
+            &mut self.all.right,
+        ] {
+            v.par_iter_mut().for_each(|a| *a /= z);
+        }
+        Ok(z)
     }
 
     fn failure(&self, detail: &str) -> SolveError {
@@ -672,33 +780,44 @@ impl RectSolver {
         }
     }
 
-    /// The S marginal from the H marginals (average of the four corners).
-    fn corners(&self, top: &[f64], bottom: &[f64]) -> Vec<f64> {
-        let mut p_s = vec![0.0; 1 << self.layout.ns];
+    /// The S marginal from the H marginals (average of the four corners), into `p_s`.
+    fn corners(&self, top: &[f64], bottom: &[f64], p_s: &mut Vec<f64>) {
+        fit(p_s, 1 << self.layout.ns);
+        p_s.fill(0.0);
         for (i, (a, b)) in top.iter().zip(bottom).enumerate() {
             for k in 0..2 {
                 p_s[self.h_corner[k][i] as usize] += 0.25 * (a + b);
             }
         }
-        p_s
     }
 
     /// `Φ(x)` into `out`: the potentials from the marginals of `x`'s block distribution.
     pub fn map(&mut self, x: &[f64], out: &mut [f64]) -> Result<(), SolveError> {
-        let (m, _, _) = self.marginals(x)?;
+        self.marginals(x)?;
+        let m = std::mem::take(&mut self.all);
+        let mut p_s = std::mem::take(&mut self.p_s);
+        self.corners(&m.top, &m.bottom, &mut p_s);
+        let result = self.map_from(&m, &p_s, x, out);
+        self.all = m;
+        self.p_s = p_s;
+        result
+    }
+
+    /// The rest of [`Self::map`], from the marginals `m` and the S marginal `p_s`.
+    fn map_from(
+        &self,
+        m: &Sums,
+        p_s: &[f64],
+        x: &[f64],
+        out: &mut [f64],
+    ) -> Result<(), SolveError> {
         let l = self.layout;
         let beta = self.beta;
-        let p_s = self.corners(&m.top, &m.bottom);
-        let check = |v: f64| v > 0.0 && v.is_finite();
-        if !(m
-            .top
+        let check = |v: &f64| *v > 0.0 && v.is_finite();
+        let fine = [&m.top, &m.bottom, &m.left, &m.right]
             .iter()
-            .chain(&m.bottom)
-            .chain(&m.left)
-            .chain(&m.right)
-            .all(|&v| check(v))
-            && p_s.iter().all(|&v| check(v)))
-        {
+            .all(|v| v.par_iter().all(check));
+        if !(fine && p_s.iter().all(check)) {
             return Err(self.failure(
                 "a sub-block probability underflowed (temperature too low for this path)",
             ));
@@ -707,17 +826,19 @@ impl RectSolver {
             let mean = v.iter().sum::<f64>() / v.len() as f64;
             v.iter_mut().for_each(|a| *a -= mean);
         };
+        // Every output is even at h = 0.
+        let mirror = (self.h == 0.0).then_some(1.0);
         {
             let g = &mut out[l.g_h()];
-            g.par_iter_mut().enumerate().for_each(|(i, g)| {
-                *g = (0.5 * (m.top[i] + m.bottom[i])).ln() + beta * self.e_h[i];
+            fill(g, mirror, |i| {
+                (0.5 * (m.top[i] + m.bottom[i])).ln() + beta * self.e_h[i]
             });
             centre(g);
         }
         {
             let g = &mut out[l.g_v()];
-            g.par_iter_mut().enumerate().for_each(|(i, g)| {
-                *g = (0.5 * (m.left[i] + m.right[i])).ln() + beta * self.e_v[i];
+            fill(g, mirror, |i| {
+                (0.5 * (m.left[i] + m.right[i])).ln() + beta * self.e_v[i]
             });
             centre(g);
         }
@@ -729,35 +850,18 @@ impl RectSolver {
             centre(g);
         }
         let (xh, xv) = (&x[l.d_h()], &x[l.d_v()]);
-        out[l.d_h()].par_iter_mut().enumerate().for_each(|(k, o)| {
-            *o = xh[k] + (m.bottom[k] / m.top[k]).ln();
+        fill(&mut out[l.d_h()], mirror, |k| {
+            xh[k] + (m.bottom[k] / m.top[k]).ln()
         });
-        out[l.d_v()].par_iter_mut().enumerate().for_each(|(k, o)| {
-            *o = xv[k] + (m.right[k] / m.left[k]).ln();
+        fill(&mut out[l.d_v()], mirror, |k| {
+            xv[k] + (m.right[k] / m.left[k]).ln()
         });
         if self.h == 0.0 {
-            self.project(out, 1.0);
+            // The rest is even by construction; g_S's sums over corners ran in another
+            // order for a state and its mirror image.
+            project_part(&mut out[l.g_s()], 1.0);
         }
         Ok(())
-    }
-
-    /// At h = 0, the even (`sign` = 1) or odd (`sign` = −1) part of every table,
-    /// `f(x) ← ½(f(x) + sign·f(x̄))`, x̄ every spin flipped. Even: spin-flip symmetry held
-    /// exactly, so that rounding cannot seed order below Tc, where the paramagnet is a
-    /// saddle; odd: the field's response.
-    fn project(&self, v: &mut [f64], sign: f64) {
-        for (range, bits) in self.layout.parts() {
-            let part = &mut v[range];
-            let full = (1usize << bits) - 1;
-            for i in 0..part.len() {
-                let j = i ^ full;
-                if i < j {
-                    let a = 0.5 * (part[i] + sign * part[j]);
-                    part[i] = a;
-                    part[j] = sign * a;
-                }
-            }
-        }
     }
 
     /// The linear response of the fixed point `x` to the field: `δx` solving
@@ -768,9 +872,15 @@ impl RectSolver {
         start: Option<&[f64]>,
         tolerance: f64,
     ) -> Result<(Vec<f64>, f64, usize), SolveError> {
-        let (m, e, z) = self.marginals(x)?;
-        let p_s = self.corners(&m.top, &m.bottom);
-        let base = Base { m, p_s, e, z };
+        let z = self.marginals(x)?;
+        let mut p_s = Vec::new();
+        self.corners(&self.all.top, &self.all.bottom, &mut p_s);
+        let base = Base {
+            m: self.all.clone(),
+            p_s,
+            e: self.exps.clone(),
+            z,
+        };
         let n = self.len();
         let mut dx = start.map_or_else(|| vec![0.0; n], <[f64]>::to_vec);
         let mut iterations = 0;
@@ -813,42 +923,72 @@ impl RectSolver {
         out: &mut [f64],
         dm: Option<&mut f64>,
     ) -> Result<(), SolveError> {
-        let dt = self.tables(v, false, dh);
-        let (_, d) = self.pass(&base.e, Some(&dt));
-        let d = d.ok_or_else(|| self.failure("no linear pass"))?;
-        let l = self.layout;
-        let beta = self.beta;
+        let mut dt = std::mem::take(&mut self.dlogs);
+        self.tables(v, false, dh, &mut dt);
+        self.pass(&base.e, Some(&dt));
+        self.dlogs = dt;
+        let mut d = std::mem::take(&mut self.dall);
+        let mut dp_s = std::mem::take(&mut self.dp_s);
         let z = base.z;
         let mean = d.z / z;
-        // δp_R = (Σ w δ)/Z − p_R ⟨δ⟩.
-        let delta = |sum: &[f64], p: &[f64]| -> Vec<f64> {
-            sum.iter().zip(p).map(|(s, p)| s / z - p * mean).collect()
-        };
+        // δp_R = (Σ w δ)/Z − p_R ⟨δ⟩, in place.
         let m = &base.m;
-        let (dt_, db, dl, dr) = (
-            delta(&d.top, &m.top),
-            delta(&d.bottom, &m.bottom),
-            delta(&d.left, &m.left),
-            delta(&d.right, &m.right),
-        );
+        for (sum, p) in [
+            (&mut d.top, &m.top),
+            (&mut d.bottom, &m.bottom),
+            (&mut d.left, &m.left),
+            (&mut d.right, &m.right),
+        ] {
+            sum.par_iter_mut()
+                .zip(p.par_iter())
+                .for_each(|(s, p)| *s = *s / z - p * mean);
+        }
+        self.corners(&d.top, &d.bottom, &mut dp_s);
+        self.linear_from(base, &d, &dp_s, v, dh, out, dm);
+        self.dall = d;
+        self.dp_s = dp_s;
+        Ok(())
+    }
+
+    /// The rest of [`Self::linear`], from the marginals' changes `d` and `dp_s`.
+    #[allow(clippy::too_many_arguments)]
+    fn linear_from(
+        &self,
+        base: &Base,
+        d: &Sums,
+        dp_s: &[f64],
+        v: &[f64],
+        dh: f64,
+        out: &mut [f64],
+        dm: Option<&mut f64>,
+    ) {
+        let l = self.layout;
+        let beta = self.beta;
+        let m = &base.m;
+        let (dt_, db, dl, dr) = (&d.top, &d.bottom, &d.left, &d.right);
         let p_s = &base.p_s;
-        let dp_s = self.corners(&dt_, &db);
+        // At h = 0 every output is odd: computed on one half, the other its mirror image,
+        // and with no constant part to remove (an odd table sums to zero).
+        let odd = self.h == 0.0;
+        let mirror = odd.then_some(-1.0);
         let centre = |v: &mut [f64]| {
-            let mean = v.iter().sum::<f64>() / v.len() as f64;
-            v.iter_mut().for_each(|a| *a -= mean);
+            if !odd {
+                let mean = v.iter().sum::<f64>() / v.len() as f64;
+                v.iter_mut().for_each(|a| *a -= mean);
+            }
         };
         {
             let g = &mut out[l.g_h()];
-            for (i, g) in g.iter_mut().enumerate() {
-                *g = (dt_[i] + db[i]) / (m.top[i] + m.bottom[i]) - dh * beta * spin_sum(l.nh, i);
-            }
+            fill(g, mirror, |i| {
+                (dt_[i] + db[i]) / (m.top[i] + m.bottom[i]) - dh * beta * spin_sum(l.nh, i)
+            });
             centre(g);
         }
         {
             let g = &mut out[l.g_v()];
-            for (i, g) in g.iter_mut().enumerate() {
-                *g = (dl[i] + dr[i]) / (m.left[i] + m.right[i]) - dh * beta * spin_sum(l.nv, i);
-            }
+            fill(g, mirror, |i| {
+                (dl[i] + dr[i]) / (m.left[i] + m.right[i]) - dh * beta * spin_sum(l.nv, i)
+            });
             centre(g);
         }
         {
@@ -857,29 +997,40 @@ impl RectSolver {
                 *g = dp_s[i] / p_s[i] - dh * beta * spin_sum(l.ns, i);
             }
             centre(g);
+            if odd {
+                // Its sums over corners ran in another order for a state and its mirror.
+                project_part(g, -1.0);
+            }
         }
-        for (k, i) in l.d_h().enumerate() {
-            out[i] = v[i] + db[k] / m.bottom[k] - dt_[k] / m.top[k];
-        }
-        for (k, i) in l.d_v().enumerate() {
-            out[i] = v[i] + dr[k] / m.right[k] - dl[k] / m.left[k];
-        }
-        if self.h == 0.0 {
-            self.project(out, -1.0);
-        }
+        let (vh, vv) = (&v[l.d_h()], &v[l.d_v()]);
+        fill(&mut out[l.d_h()], mirror, |k| {
+            vh[k] + db[k] / m.bottom[k] - dt_[k] / m.top[k]
+        });
+        fill(&mut out[l.d_v()], mirror, |k| {
+            vv[k] + dr[k] / m.right[k] - dl[k] / m.left[k]
+        });
         if let Some(dm) = dm {
             *dm = dp_s.iter().enumerate().map(|(i, d)| d * spin(i, 0)).sum();
         }
-        Ok(())
     }
 
-    /// The fixed point at the present temperature and field from `x` (in place).
+    /// The fixed point at the present temperature and field from `x` (in place), to
+    /// [`AndersonOptions::default`]'s tolerance.
     pub fn solve(&mut self, x: &mut Vec<f64>) -> Result<usize, SolveError> {
+        self.solve_to(x, AndersonOptions::default().tolerance)
+    }
+
+    /// [`Self::solve`] to `max |Φ(x) − x| < tolerance`.
+    pub fn solve_to(&mut self, x: &mut Vec<f64>, tolerance: f64) -> Result<usize, SolveError> {
         if x.len() != self.len() {
             *x = vec![0.0; self.len()];
         }
         let mut iterations = 0;
-        let result = self.mix(None, x, AndersonOptions::default(), &mut iterations);
+        let options = AndersonOptions {
+            tolerance,
+            ..AndersonOptions::default()
+        };
+        let result = self.mix(None, x, options, &mut iterations);
         match result {
             Ok(()) => Ok(iterations),
             Err(AndersonError::Map(e)) => Err(e),
@@ -889,7 +1040,7 @@ impl RectSolver {
                 h: self.h,
                 iterations,
                 gradient_norm: residual,
-                tolerance: AndersonOptions::default().tolerance,
+                tolerance,
             }),
         }
     }
@@ -897,7 +1048,8 @@ impl RectSolver {
 
 /// A fixed point's pass, kept for its linear responses.
 struct Base {
-    m: Marginals,
+    /// The normalised marginals.
+    m: Sums,
     /// The S marginal of `m` (the corners' average).
     p_s: Vec<f64>,
     /// The exponentiated tables of its pass.
@@ -977,6 +1129,25 @@ impl Stored for f64 {
     }
 }
 
+/// `Σ a_i b_i` in double precision, in four interleaved sums (so that the additions
+/// need not wait on each other and the loop vectorises).
+fn dot<A: Stored, B: Stored>(a: &[A], b: &[B]) -> f64 {
+    let mut acc = [0.0f64; 4];
+    let (ca, cb) = (a.chunks_exact(4), b.chunks_exact(4));
+    let tail: f64 = ca
+        .remainder()
+        .iter()
+        .zip(cb.remainder())
+        .map(|(x, y)| x.to_f64() * y.to_f64())
+        .sum();
+    for (x, y) in ca.zip(cb) {
+        for k in 0..4 {
+            acc[k] += x[k].to_f64() * y[k].to_f64();
+        }
+    }
+    (acc[0] + acc[1]) + (acc[2] + acc[3]) + tail
+}
+
 /// Anderson mixing for `x = Φ(x)`: with residuals `f_k = Φ(x_k) − x_k` and the last
 /// `depth` differences `ΔF`, `ΔX`, `γ = argmin ‖f_k − ΔF γ‖₂` and
 /// `x_{k+1} = x_k + β f_k − (ΔX + β ΔF) γ` (Walker & Ni 2011, SIAM J. Numer. Anal. 49,
@@ -1007,22 +1178,23 @@ pub fn anderson<S: Stored>(
     for k in 0..options.max_iterations {
         *iterations = k + 1;
         map(x, &mut g).map_err(AndersonError::Map)?;
-        f.par_chunks_mut(CHUNK)
+        // f = Φ(x) − x, with max |f| and max |x| in the same pass.
+        let (res, size) = f
+            .par_chunks_mut(CHUNK)
             .zip(g.par_chunks(CHUNK).zip(x.par_chunks(CHUNK)))
-            .for_each(|(f, (g, x))| {
-                f.iter_mut()
-                    .zip(g.iter().zip(x))
-                    .for_each(|(f, (g, x))| *f = g - x)
-            });
-        let res = f.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+            .map(|(f, (g, x))| {
+                let (mut r, mut s) = (0.0f64, 0.0f64);
+                for (f, (g, x)) in f.iter_mut().zip(g.iter().zip(x)) {
+                    *f = g - x;
+                    r = r.max(f.abs());
+                    s = s.max(x.abs());
+                }
+                (r, s)
+            })
+            .reduce(|| (0.0, 0.0), |a, b| (a.0.max(b.0), a.1.max(b.1)));
         if !res.is_finite() {
             return Err(AndersonError::NotConverged { residual: best.0 });
         }
-        let size = if options.relative > 0.0 {
-            x.iter().fold(0.0f64, |a, v| a.max(v.abs()))
-        } else {
-            0.0
-        };
         if res < options.tolerance + options.relative * size {
             return Ok(());
         }
@@ -1071,19 +1243,10 @@ pub fn anderson<S: Stored>(
                         dg[i] = S::from_f64(xr[o + i] - pxr[o + i] + beta * d);
                     }
                     for (j, s) in stored.iter().enumerate() {
-                        let sj = &s[o..o + df.len()];
-                        acc[j] = sj
-                            .iter()
-                            .zip(df.iter())
-                            .map(|(a, b)| a.to_f64() * b.to_f64())
-                            .sum();
+                        acc[j] = dot(&s[o..o + df.len()], df);
                     }
-                    acc[m] = df.iter().map(|a| a.to_f64() * a.to_f64()).sum();
-                    acc[m + 1] = df
-                        .iter()
-                        .zip(&fr[o..o + df.len()])
-                        .map(|(a, b)| a.to_f64() * b)
-                        .sum();
+                    acc[m] = dot(df, df);
+                    acc[m + 1] = dot(df, &fr[o..o + df.len()]);
                     acc
                 })
                 .reduce(
@@ -1107,8 +1270,10 @@ pub fn anderson<S: Stored>(
             dgs.push_back(dg);
             dfs.push_back(df);
         }
-        px.copy_from_slice(x);
-        pf.copy_from_slice(&f);
+        // x_k and f_k become the previous ones (x is rewritten from them below, f in the
+        // next step): swapped, not copied.
+        std::mem::swap(&mut px, x);
+        std::mem::swap(&mut pf, &mut f);
         have_prev = true;
         let m = dfs.len();
         let gamma: Vec<f64> = if m == 0 {
@@ -1123,11 +1288,11 @@ pub fn anderson<S: Stored>(
                 Err(_) => vec![0.0; m],
             }
         };
-        let dgs_ref = &dgs;
+        let (dgs_ref, xk, fk) = (&dgs, &px, &pf);
         x.par_chunks_mut(CHUNK).enumerate().for_each(|(c, xs)| {
             let o = c * CHUNK;
             for (i, xi) in xs.iter_mut().enumerate() {
-                *xi += beta * f[o + i];
+                *xi = xk[o + i] + beta * fk[o + i];
             }
             for (j, gj) in gamma.iter().enumerate() {
                 let d = &dgs_ref[j][o..o + xs.len()];
@@ -1145,8 +1310,15 @@ pub struct RectProbe {
     solver: RectSolver,
     /// Per probe: (T, 1/χ, fixed-point iterations, field-response iterations).
     pub log: Vec<(f64, f64, usize, usize)>,
-    /// Paramagnets solved: (T, x, 1/χ).
-    history: Vec<(f64, Vec<f64>, f64)>,
+    /// Paramagnets solved, the four nearest the last probe.
+    history: Vec<Solved>,
+}
+
+/// One probe's paramagnet: its temperature, potentials and 1/χ.
+struct Solved {
+    t: f64,
+    x: Vec<f64>,
+    v: f64,
 }
 
 impl RectProbe {
@@ -1164,24 +1336,25 @@ impl RectProbe {
         self.solver.passes
     }
 
-    /// `1/χ` (χ = dm/dh) of the paramagnet at `t`: the fixed point warm started from
-    /// the two nearest ones (linear in T), its field response from zero (a start from
-    /// the nearest response, scaled by the change of χ, cost more passes: its gauge
-    /// components are not those of the new fixed point).
+    /// `1/χ` (χ = dm/dh) of the paramagnet at `t`: the fixed point (to
+    /// `max |Φ(x) − x| < 10⁻¹⁰`) warm started from the two nearest ones (linear in T),
+    /// its field response (to 10⁻⁹ of its size) from zero (a start from the nearest
+    /// response, scaled by the change of χ, cost more passes: its gauge components are
+    /// not those of the new fixed point).
     pub fn inverse_susceptibility(&mut self, t: f64) -> Result<f64, SolveError> {
-        if let Some(h) = self.history.iter().find(|h| h.0 == t) {
-            return Ok(h.2);
+        if let Some(h) = self.history.iter().find(|h| h.t == t) {
+            return Ok(h.v);
         }
         self.solver.set(t, 0.0);
-        let mut near: Vec<&(f64, Vec<f64>, f64)> = self.history.iter().collect();
-        near.sort_by(|a, b| (a.0 - t).abs().total_cmp(&(b.0 - t).abs()));
+        let mut near: Vec<&Solved> = self.history.iter().collect();
+        near.sort_by(|a, b| (a.t - t).abs().total_cmp(&(b.t - t).abs()));
         let mut x = match near.as_slice() {
             [a, b, ..] => {
                 // Linear in T through the two nearest.
-                let s = (t - a.0) / (a.0 - b.0);
-                a.1.iter().zip(&b.1).map(|(p, q)| p + s * (p - q)).collect()
+                let s = (t - a.t) / (a.t - b.t);
+                a.x.iter().zip(&b.x).map(|(p, q)| p + s * (p - q)).collect()
             }
-            [a] => a.1.clone(),
+            [a] => a.x.clone(),
             [] => vec![0.0; self.solver.len()],
         };
         let iterations = match self.solver.solve(&mut x) {
@@ -1190,7 +1363,7 @@ impl RectProbe {
                 // A poor extrapolation: from the nearest solution, or cold.
                 x = near
                     .first()
-                    .map_or_else(|| vec![0.0; self.solver.len()], |a| a.1.clone());
+                    .map_or_else(|| vec![0.0; self.solver.len()], |a| a.x.clone());
                 self.solver.solve(&mut x)?
             }
         };
@@ -1200,8 +1373,8 @@ impl RectProbe {
         if !v.is_finite() {
             return Err(self.solver.failure("the susceptibility is not finite"));
         }
-        super::drop_farthest(&mut self.history, 4, t, |h| h.0);
-        self.history.push((t, x, v));
+        super::drop_farthest(&mut self.history, 4, t, |h| h.t);
+        self.history.push(Solved { t, x, v });
         Ok(v)
     }
 }
@@ -1250,7 +1423,8 @@ fn poly_root(c: &[f64], t0: f64) -> Option<f64> {
 /// until it agrees with the last estimate or with the quadratic's root through the three
 /// nearest probes to `options.relative_tolerance`. Probes stay a
 /// ten-thousandth of T from Tc, where the field response is still well conditioned;
-/// `χ̄ = 1/(d(1/χ)/dT)` at the root of the same cubic.
+/// `χ̄ = 1/(d(1/χ)/dT)` at the root of the same cubic. A probe is not placed within
+/// 5·10⁻⁵ T of an earlier one (the next offset is taken).
 pub fn critical_temperature_rect(
     lattice: &Lattice,
     name: &str,
@@ -1333,6 +1507,12 @@ pub fn critical_temperature_rect(
     let mut converged = false;
     for offset in offsets {
         let t = estimate * (1.0 + offset);
+        // Not beside an earlier probe: two nodes closer than 5·10⁻⁵ T would multiply
+        // their values' errors (~10⁻⁷ of 1/χ near Tc) in the cubic by their distance's
+        // inverse.
+        if points.iter().any(|p| (p.0 - t).abs() < 5e-5 * t) {
+            continue;
+        }
         points.push((t, probe_at(t)?));
         let near = nearest(&points, estimate);
         let c = interpolate(&near, estimate).ok_or_else(|| SolveError::TcSearch {
