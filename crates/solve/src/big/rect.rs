@@ -279,6 +279,16 @@ fn fit(v: &mut Vec<f64>, n: usize) {
     }
 }
 
+/// `op(v[i], v[len − 1 − i])` for every `i` of the first half, in parallel: at h = 0 a
+/// table's entry and that of its mirror state (every spin flipped, `x̄ = x ^ (len − 1)`).
+fn mirror_pairs(v: &mut [f64], op: impl Fn(&mut f64, &mut f64) + Sync + Send) {
+    let middle = v.len() / 2;
+    let (lo, hi) = v.split_at_mut(middle);
+    lo.par_iter_mut()
+        .zip(hi.par_iter_mut().rev())
+        .for_each(|(a, b)| op(a, b));
+}
+
 /// `v[i] = f(i)` in parallel; with `mirror` (h = 0, where every table is even or odd under
 /// flipping every spin, `i ↦ i ^ (len − 1)`), only the first half is computed and the
 /// second is its mirror image, `v[len − 1 − i] = sign·v[i]`, exactly as the full
@@ -289,11 +299,11 @@ fn fill(v: &mut [f64], mirror: Option<f64>, f: impl Fn(usize) -> f64 + Sync) {
         None => v.par_iter_mut().enumerate().for_each(|(i, o)| *o = f(i)),
         Some(sign) => {
             let half = v.len() / 2;
-            let (a, b) = v.split_at_mut(half);
-            a.par_iter_mut().enumerate().for_each(|(i, o)| *o = f(i));
-            b.par_iter_mut()
-                .zip(a.par_iter().rev())
-                .for_each(|(o, v)| *o = sign * v);
+            v[..half]
+                .par_iter_mut()
+                .enumerate()
+                .for_each(|(i, o)| *o = f(i));
+            mirror_pairs(v, |a, b| *b = sign * *a);
         }
     }
 }
@@ -304,15 +314,11 @@ fn fill(v: &mut [f64], mirror: Option<f64>, f: impl Fn(usize) -> f64 + Sync) {
 /// paramagnet is a saddle; odd: the field's response. (The tables [`fill`] mirrors are
 /// exactly even or odd already; this is for the rest.)
 fn project_part(part: &mut [f64], sign: f64) {
-    let half = part.len() / 2;
-    let (a, b) = part.split_at_mut(half);
-    a.par_iter_mut()
-        .zip(b.par_iter_mut().rev())
-        .for_each(|(x, y)| {
-            let m = 0.5 * (*x + sign * *y);
-            *x = m;
-            *y = sign * m;
-        });
+    mirror_pairs(part, |x, y| {
+        let m = 0.5 * (*x + sign * *y);
+        *x = m;
+        *y = sign * m;
+    });
 }
 
 /// The four look-up tables of a pass: `ln p_B(s) + ln Z − shift` is
@@ -620,12 +626,7 @@ impl RectSolver {
             if symmetric {
                 all.z = if sign > 0.0 { 2.0 * all.z } else { 0.0 };
                 for v in [&mut all.top, &mut all.bottom, &mut all.left, &mut all.right] {
-                    // x and x̄ = len − 1 − x: the two halves, one of them reversed.
-                    let middle = v.len() / 2;
-                    let (lo, hi) = v.split_at_mut(middle);
-                    lo.par_iter_mut()
-                        .zip(hi.par_iter_mut().rev())
-                        .for_each(|(a, b)| (*a, *b) = (*a + sign * *b, *b + sign * *a));
+                    mirror_pairs(v, |a, b| (*a, *b) = (*a + sign * *b, *b + sign * *a));
                 }
             }
         };
@@ -660,12 +661,9 @@ impl RectSolver {
         let mut at = 0;
         for (range, bits) in l.parts() {
             let m = 1usize << (bits - 1);
-            let mask = (1usize << bits) - 1;
             let part = &mut full[range];
             part[..m].copy_from_slice(&half[at..at + m]);
-            for i in m..2 * m {
-                part[i] = sign * half[at + (i ^ mask)];
-            }
+            mirror_pairs(part, |a, b| *b = sign * *a);
             at += m;
         }
     }
@@ -718,10 +716,10 @@ impl RectSolver {
 
     /// The exponentiated tables of a pass into `out`: their product over a state's four
     /// sub-blocks is `exp(ln p(s) + ln Z − shift)`; each table is shifted by its own
-    /// largest entry (the last by the rest of `shift`), so no entry overflows.
-    fn exponentiate(t: &Tables, shift: f64, symmetric: bool, out: &mut Tables) {
-        let max = |v: &[f64]| v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        let (mt, mb, ml) = (max(&t.top), max(&t.bottom), max(&t.left));
+    /// largest entry (`maxima`, [`Self::maxima`]; the last by the rest of `shift`), so no
+    /// entry overflows.
+    fn exponentiate(t: &Tables, maxima: [f64; 4], shift: f64, symmetric: bool, out: &mut Tables) {
+        let [mt, mb, ml, _] = maxima;
         let mr = shift - mt - mb - ml;
         let mirror = symmetric.then_some(1.0);
         let ex = |v: &[f64], o: &mut Vec<f64>, m: f64| {
@@ -734,10 +732,11 @@ impl RectSolver {
         ex(&t.right, &mut out.right, mr);
     }
 
-    /// The shift that keeps every `exp` of a pass finite: the tables' largest sum.
-    fn shift(t: &Tables) -> f64 {
+    /// Each table's largest entry; their sum, the tables' largest sum, is the shift that
+    /// keeps every `exp` of a pass finite.
+    fn maxima(t: &Tables) -> [f64; 4] {
         let max = |v: &[f64]| v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        max(&t.top) + max(&t.bottom) + max(&t.left) + max(&t.right)
+        [max(&t.top), max(&t.bottom), max(&t.left), max(&t.right)]
     }
 
     /// The block distribution of `x` (one pass): its normalised marginals into
@@ -747,13 +746,14 @@ impl RectSolver {
         let mut t = std::mem::take(&mut self.logs);
         let mut e = std::mem::take(&mut self.exps);
         self.tables(x, true, 0.0, &mut t);
-        let shift = Self::shift(&t);
+        let maxima = Self::maxima(&t);
+        let shift = maxima[0] + maxima[1] + maxima[2] + maxima[3];
         let symmetric = self.h == 0.0;
-        Self::exponentiate(&t, shift, symmetric, &mut e);
+        Self::exponentiate(&t, maxima, shift, symmetric, &mut e);
         self.pass(&e, None);
         if self.all.z > 0.0 && self.all.z < 1e-200 {
             // The bound was far above the true largest term: once more, shifted by ln Z.
-            Self::exponentiate(&t, shift + self.all.z.ln(), symmetric, &mut e);
+            Self::exponentiate(&t, maxima, shift + self.all.z.ln(), symmetric, &mut e);
             self.pass(&e, None);
         }
         self.logs = t;
@@ -865,13 +865,13 @@ impl RectSolver {
     }
 
     /// The linear response of the fixed point `x` to the field: `δx` solving
-    /// `δx = DΦ(x)·δx + ∂_hΦ(x)` (Anderson mixing from `start`), and `dm/dh`.
+    /// `δx = DΦ(x)·δx + ∂_hΦ(x)` (Anderson mixing from zero, to `tolerance` of the
+    /// right-hand side), and from it χ = dm/dh; returns χ and the passes it took.
     pub fn field_response(
         &mut self,
         x: &[f64],
-        start: Option<&[f64]>,
         tolerance: f64,
-    ) -> Result<(Vec<f64>, f64, usize), SolveError> {
+    ) -> Result<(f64, usize), SolveError> {
         let z = self.marginals(x)?;
         let mut p_s = Vec::new();
         self.corners(&self.all.top, &self.all.bottom, &mut p_s);
@@ -882,7 +882,7 @@ impl RectSolver {
             z,
         };
         let n = self.len();
-        let mut dx = start.map_or_else(|| vec![0.0; n], <[f64]>::to_vec);
+        let mut dx = vec![0.0; n];
         let mut iterations = 0;
         let mut scratch = vec![0.0; n];
         // Scale of the right-hand side: the map at δx = 0.
@@ -910,7 +910,7 @@ impl RectSolver {
         }
         let mut chi = 0.0;
         self.linear(&base, &dx, 1.0, &mut scratch, Some(&mut chi))?;
-        Ok((dx, chi, iterations))
+        Ok((chi, iterations))
     }
 
     /// `out = DΦ(x)·v + dh ∂_hΦ(x)` at the fixed point whose pass is `base`; with
@@ -1017,19 +1017,11 @@ impl RectSolver {
     /// The fixed point at the present temperature and field from `x` (in place), to
     /// [`AndersonOptions::default`]'s tolerance.
     pub fn solve(&mut self, x: &mut Vec<f64>) -> Result<usize, SolveError> {
-        self.solve_to(x, AndersonOptions::default().tolerance)
-    }
-
-    /// [`Self::solve`] to `max |Φ(x) − x| < tolerance`.
-    pub fn solve_to(&mut self, x: &mut Vec<f64>, tolerance: f64) -> Result<usize, SolveError> {
         if x.len() != self.len() {
             *x = vec![0.0; self.len()];
         }
         let mut iterations = 0;
-        let options = AndersonOptions {
-            tolerance,
-            ..AndersonOptions::default()
-        };
+        let options = AndersonOptions::default();
         let result = self.mix(None, x, options, &mut iterations);
         match result {
             Ok(()) => Ok(iterations),
@@ -1040,7 +1032,7 @@ impl RectSolver {
                 h: self.h,
                 iterations,
                 gradient_norm: residual,
-                tolerance,
+                tolerance: options.tolerance,
             }),
         }
     }
@@ -1367,7 +1359,7 @@ impl RectProbe {
                 self.solver.solve(&mut x)?
             }
         };
-        let (_, chi, linear) = self.solver.field_response(&x, None, 1e-9)?;
+        let (chi, linear) = self.solver.field_response(&x, 1e-9)?;
         self.log.push((t, 1.0 / chi, iterations, linear));
         let v = 1.0 / chi;
         if !v.is_finite() {
