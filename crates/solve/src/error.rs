@@ -97,7 +97,7 @@ pub enum SolveError {
         detail: String,
     },
     /// A Tc asked in a field of a level that is searched at h = 0 only.
-    #[error("level `{level}` is too large for the dense engine: its Tc is searched at h = 0 only (uniform order on point-group orbits), so no Tc in the field h = {h} is given; a smaller level gives the Néel line or the Tc in a field")]
+    #[error("level `{level}` is too large for the dense engine: its Tc is searched at h = 0 only (uniform order, on point-group orbits or, for a rectangular block of a square net, on sub-block potentials), so no Tc in the field h = {h} is given; a smaller level gives the Néel line or the Tc in a field")]
     FieldUnsupported {
         /// Level name.
         level: String,
