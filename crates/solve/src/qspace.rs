@@ -64,6 +64,8 @@ pub struct QHessian<'f> {
     block: Block,
     /// `D^{-1/2}` per block row (all ones when unscaled).
     row_scale: Vec<f64>,
+    /// Real forms at complex wavevectors (see [`RealForms`]), when given.
+    real: Option<&'f RealForms>,
 }
 
 /// The lowest eigenvalue of `H(q)` and its unit eigenvector (on the block).
@@ -116,6 +118,7 @@ impl<'f> QHessian<'f> {
             quad,
             block,
             row_scale,
+            real: None,
         })
     }
 
@@ -148,6 +151,19 @@ impl<'f> QHessian<'f> {
         }
         qh.row_scale = diag.iter().map(|d| 1.0 / d.sqrt()).collect();
         Some(qh)
+    }
+
+    /// The same matrices, factorised and diagonalised in the real forms `forms` (built
+    /// on this block) wherever an operation maps q to −q: the same answers for a quarter
+    /// of the work at complex wavevectors.
+    pub fn with_real_forms(mut self, forms: &'f RealForms) -> QHessian<'f> {
+        self.real = Some(forms);
+        self
+    }
+
+    /// The real basis at a complex wavevector q, when the real forms have one.
+    fn real_basis(&self, q: &Wavevector) -> Option<Vec<RealColumn>> {
+        self.real.and_then(|r| r.basis(q))
     }
 
     /// `D^{-1/2}` per row of the block (ones for an unscaled matrix).
@@ -287,6 +303,14 @@ impl<'f> QHessian<'f> {
                 },
                 None => failed(),
             }
+        } else if let Some(cols) = self.real_basis(q) {
+            match linalg::lowest_real(&real_form(&self.matrix(q), &cols)) {
+                Some((value, y)) => LowestMode {
+                    value,
+                    vector: complex_vector(&y, &cols, n),
+                },
+                None => failed(),
+            }
         } else {
             match linalg::lowest_complex(&self.matrix(q)) {
                 Some((value, vector)) => LowestMode { value, vector },
@@ -310,6 +334,8 @@ impl<'f> QHessian<'f> {
         }
         if is_real(q) {
             linalg::min_eigenvalue_real(&self.real_matrix(q))
+        } else if let Some(cols) = self.real_basis(q) {
+            linalg::min_eigenvalue_real(&real_form(&self.matrix(q), &cols))
         } else {
             linalg::min_eigenvalue_complex(&self.matrix(q))
         }
@@ -327,6 +353,12 @@ impl<'f> QHessian<'f> {
         }
         if is_real(q) {
             let mut m = self.real_matrix(q);
+            for i in 0..m.nrows() {
+                m[(i, i)] -= shift;
+            }
+            linalg::positive_definite_real(&m)
+        } else if let Some(cols) = self.real_basis(q) {
+            let mut m = real_form(&self.matrix(q), &cols);
             for i in 0..m.nrows() {
                 m[(i, i)] -= shift;
             }
@@ -363,12 +395,7 @@ impl Projection {
         q: &Wavevector,
         block: &crate::functional::Block,
     ) -> Projection {
-        let index: HashMap<&Cluster, usize> = level
-            .variables
-            .iter()
-            .enumerate()
-            .map(|(i, c)| (c, i))
-            .collect();
+        let index = variable_index(level);
         let little: Vec<&SiteMap> = ops.iter().filter(|op| fixes(op, q)).collect();
         let mut rows = vec![(usize::MAX, Complex::new(0.0, 0.0)); block.vars.len()];
         let mut done = vec![false; level.variables.len()];
@@ -380,20 +407,7 @@ impl Projection {
             let mut members: Vec<(usize, Complex<f64>)> = Vec::new();
             let mut consistent = true;
             for op in &little {
-                let mut img: Vec<(Cell, usize)> = level.variables[v0]
-                    .sites()
-                    .map(|(a, c)| {
-                        let (b, d) = op.apply(a, c);
-                        (d, b)
-                    })
-                    .collect();
-                img.sort_unstable();
-                let t = img[0].0;
-                let canon = Cluster::canonical(
-                    img.iter()
-                        .map(|&(c, b)| (b, [c[0] - t[0], c[1] - t[1], c[2] - t[2]])),
-                );
-                let Some(&w) = index.get(&canon) else {
+                let Some((w, t)) = variable_image(level, &index, op, v0) else {
                     consistent = false;
                     break;
                 };
@@ -460,6 +474,195 @@ fn fixes(op: &SiteMap, q: &Wavevector) -> bool {
             + q[2] * (img[2] - e[2]) as f64;
         near_integer(d)
     })
+}
+
+/// Every variable of `level` by its cluster.
+fn variable_index(level: &Level) -> HashMap<&Cluster, usize> {
+    level
+        .variables
+        .iter()
+        .enumerate()
+        .map(|(i, c)| (c, i))
+        .collect()
+}
+
+/// The image of variable `v` (placed with its first site in cell 0) under `op`: the
+/// variable `w` and the cell `t` of its first site, `op(v@0) = w@t`. `None` when the
+/// image is not a variable of the level.
+fn variable_image(
+    level: &Level,
+    index: &HashMap<&Cluster, usize>,
+    op: &SiteMap,
+    v: usize,
+) -> Option<(usize, Cell)> {
+    let mut img: Vec<(Cell, usize)> = level.variables[v]
+        .sites()
+        .map(|(a, c)| {
+            let (b, d) = op.apply(a, c);
+            (d, b)
+        })
+        .collect();
+    img.sort_unstable();
+    let t = img.first()?.0;
+    let canon = Cluster::canonical(
+        img.iter()
+            .map(|&(c, b)| (b, [c[0] - t[0], c[1] - t[1], c[2] - t[2]])),
+    );
+    index.get(&canon).map(|&w| (w, t))
+}
+
+/// Whether the operation with cell matrix `r` maps q to −q modulo reciprocal lattice vectors: `q·(R n + n) ∈ ℤ` on the
+/// unit cells n (the counterpart of [`fixes`]).
+fn reverses(r: &[[i32; 3]; 3], q: &Wavevector) -> bool {
+    (0..3).all(|k| {
+        let d = q[0] * f64::from(r[0][k] + i32::from(k == 0))
+            + q[1] * f64::from(r[1][k] + i32::from(k == 1))
+            + q[2] * f64::from(r[2][k] + i32::from(k == 2));
+        near_integer(d)
+    })
+}
+
+/// Real symmetric forms of `H(q)` at complex wavevectors, from the point-group
+/// operations that map q to −q (inversion maps every q so).
+///
+/// The Hessian in real space is real, so `H(q)* = H(−q)`; an operation g with
+/// `g(v@0) = w_v@t_v` and `Rᵀ⁻¹q ≡ −q` gives `H_cd(q) = φ_c φ_d* H_{w_c w_d}(q)*` with
+/// `φ_c = e^{−2πi q·t_c}`, i.e. `H = U H* U†` for `U_{c,w_c} = φ_c`. The antiunitary
+/// `Θx = U x*` then commutes with H; where `Θ² = 1` (g an involution on the variables,
+/// `φ_c = φ_{w_c}`) its fixed vectors form a real basis,
+///
+/// ```text
+/// w_c = c:  √φ_c e_c;       w_c = d ≠ c:  (e_c + φ_d e_d)/√2,  i(e_c − φ_d e_d)/√2,
+/// ```
+///
+/// and `V† H(q) V` in that basis is real symmetric with the spectrum of H(q): a real
+/// Cholesky factorisation or eigensolve, a quarter of the complex one's work.
+#[derive(Debug, Clone, Default)]
+pub struct RealForms {
+    /// The usable operations.
+    maps: Vec<Involution>,
+}
+
+/// An operation that exchanges the block's variables in pairs (or fixes them).
+#[derive(Debug, Clone)]
+struct Involution {
+    /// Its matrix on cells.
+    rot: [[i32; 3]; 3],
+    /// Per block row: the image row and the cell of the image variable's first site.
+    rows: Vec<(usize, Cell)>,
+}
+
+/// One column of a real basis: at most two (block row, coefficient) entries.
+type RealColumn = [(usize, Complex<f64>); 2];
+
+impl RealForms {
+    /// The operations of `ops` (a point group of `level`) that act on `block` as an
+    /// involution of its variables (inversion, two-fold rotations, mirrors).
+    pub fn new(level: &Level, ops: &[SiteMap], block: &crate::functional::Block) -> RealForms {
+        let index = variable_index(level);
+        let maps: Vec<Involution> = ops
+            .iter()
+            .filter_map(|op| {
+                let rows: Vec<(usize, Cell)> = block
+                    .vars
+                    .iter()
+                    .map(|&v| {
+                        let (w, t) = variable_image(level, &index, op, v)?;
+                        let row = block.pos[w];
+                        (row != usize::MAX).then_some((row, t))
+                    })
+                    .collect::<Option<_>>()?;
+                let involution = rows.iter().enumerate().all(|(j, &(w, _))| rows[w].0 == j);
+                involution.then_some(Involution { rot: op.rot, rows })
+            })
+            .collect();
+        RealForms { maps }
+    }
+
+    /// Whether `q` has a real form (an operation maps it to −q with `Θ² = 1`).
+    pub fn applies_at(&self, q: &Wavevector) -> bool {
+        self.basis(q).is_some()
+    }
+
+    /// A real basis of the block at `q` (see [`RealForms`]), `None` when no operation
+    /// maps q to −q with `Θ² = 1`.
+    fn basis(&self, q: &Wavevector) -> Option<Vec<RealColumn>> {
+        let zero = Complex::new(0.0, 0.0);
+        self.maps.iter().find_map(|Involution { rot, rows }| {
+            if !reverses(rot, q) {
+                return None;
+            }
+            let phi: Vec<Complex<f64>> = rows.iter().map(|(_, t)| phase(q, t).conj()).collect();
+            if rows
+                .iter()
+                .enumerate()
+                .any(|(j, &(w, _))| (phi[j] - phi[w]).norm() > 1e-9)
+            {
+                return None;
+            }
+            let half = std::f64::consts::FRAC_1_SQRT_2;
+            let mut cols = Vec::with_capacity(rows.len());
+            for (j, &(w, _)) in rows.iter().enumerate() {
+                if w == j {
+                    cols.push([(j, phi[j].sqrt()), (j, zero)]);
+                } else if j < w {
+                    cols.push([(j, Complex::new(half, 0.0)), (w, phi[w] * half)]);
+                    cols.push([
+                        (j, Complex::new(0.0, half)),
+                        (w, -phi[w] * Complex::new(0.0, half)),
+                    ]);
+                }
+            }
+            Some(cols)
+        })
+    }
+}
+
+/// `V† H V`, real part, for the columns `cols` of a real basis ([`RealForms`]): first
+/// `W = H V` (each column a combination of at most two columns of H), then
+/// `S_ab = Re Σ_r conj(V_ra) W_rb`; O(m²).
+fn real_form(h: &DMatrix<Complex<f64>>, cols: &[RealColumn]) -> DMatrix<f64> {
+    let m = cols.len();
+    let hs = h.as_slice();
+    let mut s = DMatrix::<f64>::zeros(m, m);
+    let ss = s.as_mut_slice();
+    let mut w = vec![Complex::new(0.0, 0.0); m];
+    for (b, col) in cols.iter().enumerate() {
+        let [(r0, y0), (r1, y1)] = *col;
+        let h0 = &hs[r0 * m..(r0 + 1) * m];
+        if y1.re == 0.0 && y1.im == 0.0 {
+            for (wi, &a) in w.iter_mut().zip(h0) {
+                *wi = a * y0;
+            }
+        } else {
+            let h1 = &hs[r1 * m..(r1 + 1) * m];
+            for ((wi, &a), &c) in w.iter_mut().zip(h0).zip(h1) {
+                *wi = a * y0 + c * y1;
+            }
+        }
+        // Upper triangle and diagonal of column b; the lower one mirrored below.
+        for (a, &[(ra, xa), (sa, za)]) in cols[..=b].iter().enumerate() {
+            let (p, q) = (w[ra], w[sa]);
+            ss[a + m * b] = xa.re * p.re + xa.im * p.im + za.re * q.re + za.im * q.im;
+        }
+    }
+    for b in 0..m {
+        for a in 0..b {
+            ss[b + m * a] = ss[a + m * b];
+        }
+    }
+    s
+}
+
+/// `Σ_a y_a V_a`: a vector of the real basis written on the block's rows.
+fn complex_vector(y: &DVector<f64>, cols: &[RealColumn], m: usize) -> DVector<Complex<f64>> {
+    let mut v = DVector::<Complex<f64>>::zeros(m);
+    for (ya, col) in y.iter().zip(cols) {
+        for &(r, x) in col {
+            v[r] += x * *ya;
+        }
+    }
+    v
 }
 
 impl QHessian<'_> {

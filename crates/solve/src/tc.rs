@@ -31,7 +31,9 @@ use crate::disordered::Disordered;
 use crate::error::SolveError;
 pub use crate::ordering::ModeKind;
 use crate::ordering::Ordering;
-use crate::qspace::{coupling_top, is_real, LowestMode, Projection, QHessian, Wavevector};
+use crate::qspace::{
+    coupling_top, is_real, LowestMode, Projection, QHessian, RealForms, Wavevector,
+};
 use crate::search::{refine_known, step_down, Bracket, Probe, StepRules};
 use rayon::prelude::*;
 
@@ -304,6 +306,8 @@ impl Candidate {
 struct QProbe<'a, 'l> {
     lattice: &'l Lattice,
     follower: &'l Disordered<'a>,
+    /// Real forms of the block's `H(q)` at complex wavevectors.
+    forms: &'l RealForms,
     candidates: RefCell<Vec<Candidate>>,
     name: String,
     /// The last temperature probed (successfully), its noise scale and the candidate
@@ -321,8 +325,8 @@ impl QProbe<'_, '_> {
     fn evaluate(&self, t: f64) -> Result<(f64, usize, f64), SolveError> {
         let (f, x) = self.follower.solve_for_stability(t)?;
         let qh = QHessian::scaled(&f, self.lattice, &x, self.follower.sector(), false)
-            .ok_or_else(|| infeasible(&self.name, t))?;
-        let _ = &f;
+            .ok_or_else(|| infeasible(&self.name, t))?
+            .with_real_forms(self.forms);
         let noise = SCALED_NOISE;
         let (mut best, mut arg) = (f64::INFINITY, 0);
         // While stepping down, whether a less symmetric mode went soft first is checked
@@ -377,6 +381,10 @@ impl Probe for QProbe<'_, '_> {
         &self.name
     }
 }
+
+/// Blocks from this many variables factorise `H(q)` at complex wavevectors in its real
+/// form ([`RealForms`]).
+const REAL_FORMS_FROM: usize = 256;
 
 /// The phase of the search in which every probe checks the full blocks.
 const STEPPING_DOWN: &str = "stepping down";
@@ -441,6 +449,13 @@ pub fn critical_temperature_observed(
     let ops = symmetry::level_group(level, &symmetry::point_group(lattice));
     let follower = Disordered::with_group(level, h, &ops, scale);
     let sector = follower.sector();
+    // Real forms pay where factorisations dominate: at a hundred variables the complex
+    // factorisation is as fast as forming the real matrix (measured, docs/benchmarks.md).
+    let forms = if sector.vars.len() >= REAL_FORMS_FROM {
+        RealForms::new(level, &ops, &sector)
+    } else {
+        RealForms::default()
+    };
     let watch = |q: Wavevector| Candidate {
         q,
         projection: Some(Projection::new(level, &ops, &q, &sector)),
@@ -455,6 +470,7 @@ pub fn critical_temperature_observed(
     let mut probe = QProbe {
         lattice,
         follower: &follower,
+        forms: &forms,
         candidates: RefCell::new(candidates),
         name: level.name.clone(),
         last: RefCell::new((f64::NAN, 0.0, 0)),
@@ -520,7 +536,8 @@ pub fn critical_temperature_observed(
         // Refine the wavevector at Tc; check every grid wavevector just above Tc.
         let (f, x) = follower.solve_for_stability(tc)?;
         let qh = QHessian::scaled(&f, lattice, &x, follower.sector(), false)
-            .ok_or_else(|| infeasible(&level.name, tc))?;
+            .ok_or_else(|| infeasible(&level.name, tc))?
+            .with_real_forms(&forms);
         let (_, arg) =
             {
                 let c = probe.candidates.borrow();
@@ -535,18 +552,7 @@ pub fn critical_temperature_observed(
         // A local minimum over q is kept as it is (points of high symmetry stay exact);
         // otherwise the compass search moves it.
         let step = 1.0 / 64.0;
-        let neighbours: Vec<Wavevector> = directions(d)
-            .iter()
-            .flat_map(|dir| {
-                [1.0, -1.0].map(|sgn| {
-                    let mut p = q_star;
-                    for k in 0..d {
-                        p[k] += sgn * step * dir[k];
-                    }
-                    p
-                })
-            })
-            .collect();
+        let neighbours = distinct_neighbours(&ops, &q_star, d, step);
         let lower = |p: &Wavevector| !qh.is_positive_definite_above(p, lam_star - tol);
         let neighbour_lower = if worth_threads(&qh) {
             neighbours.par_iter().any(lower)
@@ -573,13 +579,21 @@ pub fn critical_temperature_observed(
         let t_check = tc * (1.0 + 1e-6);
         let (fc, xc) = follower.solve_for_stability(t_check)?;
         let qc = QHessian::scaled(&fc, lattice, &xc, follower.sector(), false)
-            .ok_or_else(|| infeasible(&level.name, t_check))?;
+            .ok_or_else(|| infeasible(&level.name, t_check))?
+            .with_real_forms(&forms);
         new_q.extend(soft_elsewhere(&qc, &probe.candidates.borrow(), &verify, d));
         if new_q.is_empty() {
             observe("ordering pattern and critical amplitude");
             let chosen = &probe.candidates.borrow()[arg];
             let cp = finish(
-                lattice, level, &ops, &follower, tc, chosen, &mut notes, start,
+                lattice,
+                level,
+                (&ops, &forms),
+                &follower,
+                tc,
+                chosen,
+                &mut notes,
+                start,
             )?;
             return Ok(cp);
         }
@@ -832,7 +846,7 @@ fn no_transition(
 fn finish(
     lattice: &Lattice,
     level: &Level,
-    ops: &[symmetry::SiteMap],
+    (ops, forms): (&[symmetry::SiteMap], &RealForms),
     follower: &Disordered,
     tc: f64,
     chosen: &Candidate,
@@ -843,7 +857,8 @@ fn finish(
     let (f, x) = follower.solve_for_stability(tc)?;
     let sector = follower.sector();
     let qh = QHessian::scaled(&f, lattice, &x, sector.clone(), false)
-        .ok_or_else(|| infeasible(&level.name, tc))?;
+        .ok_or_else(|| infeasible(&level.name, tc))?
+        .with_real_forms(forms);
     let q = chosen.q;
     let mode = chosen.mode(&qh);
     let u = &mode.vector;
@@ -973,6 +988,63 @@ fn directions(d: usize) -> Vec<Wavevector> {
     out
 }
 
+/// The compass neighbours `q* ± step·dir` of q* whose spectra may differ: one of each
+/// class under the operations of `ops` that fix q* (δ ↦ R⁻ᵀδ) and those that map q* to
+/// −q* (δ ↦ −R⁻ᵀδ, as `H(−q) = H(q)*` has the spectrum of H(q)). At q* = 0 on a cubic
+/// level the 18 neighbours are two classes.
+fn distinct_neighbours(
+    ops: &[symmetry::SiteMap],
+    q_star: &Wavevector,
+    d: usize,
+    step: f64,
+) -> Vec<Wavevector> {
+    let act = |inv: &[[i32; 3]; 3], v: &Wavevector| -> Wavevector {
+        let mut p = [0.0; 3];
+        for (i, pi) in p.iter_mut().enumerate() {
+            *pi = (0..3).map(|k| f64::from(inv[k][i]) * v[k]).sum();
+        }
+        p
+    };
+    let same =
+        |a: &Wavevector, b: &Wavevector| (0..d).all(|k| crate::qspace::near_integer(a[k] - b[k]));
+    // (R⁻¹, sign): δ ↦ sign·R⁻ᵀδ keeps the spectrum.
+    let maps: Vec<([[i32; 3]; 3], f64)> = ops
+        .iter()
+        .filter_map(|op| inverse3(&op.rot))
+        .filter_map(|inv| {
+            let img = act(&inv, q_star);
+            if same(&img, q_star) {
+                Some((inv, 1.0))
+            } else if same(&img, &q_star.map(|v| -v)) {
+                Some((inv, -1.0))
+            } else {
+                None
+            }
+        })
+        .collect();
+    let key = |v: &Wavevector| v.map(|c| (c / step).round() as i64);
+    let mut seen = std::collections::HashSet::new();
+    let mut out = Vec::new();
+    for dir in directions(d) {
+        for sgn in [1.0, -1.0] {
+            let delta = dir.map(|c| sgn * step * c);
+            if seen.contains(&key(&delta)) {
+                continue;
+            }
+            seen.insert(key(&delta));
+            for (inv, sign) in &maps {
+                seen.insert(key(&act(inv, &delta).map(|c| sign * c)));
+            }
+            let mut p = *q_star;
+            for k in 0..d {
+                p[k] += delta[k];
+            }
+            out.push(p);
+        }
+    }
+    out
+}
+
 /// The distinct images of q under the lattice's point group (q ↦ R⁻ᵀ q for cell maps R).
 pub fn star_of(lattice: &Lattice, q: &Wavevector) -> Vec<Wavevector> {
     star_under(&symmetry::point_group(lattice), q, lattice.dimension())
@@ -1089,6 +1161,35 @@ mod tests {
             .map(|ij| (0..3).map(|k| m[ij / 3][k] * inv[k][ij % 3]).sum())
             .collect();
         assert_eq!(product, vec![1, 0, 0, 0, 1, 0, 0, 0, 1]);
+    }
+
+    #[test]
+    fn compass_neighbours_one_per_class() {
+        // The cube's point group Oh: the 18 neighbours of q = 0 along ⟨100⟩ and ⟨110⟩
+        // are two classes; at a general point of the zone no operation fixes q or maps it
+        // to −q, and all 18 stay (common practice: stars of the cubic group).
+        let cubic = "name: sc\ndimension: 3\nvectors: [[1, 0, 0], [0, 1, 0], [0, 0, 1]]\n\
+                     basis: [{name: a}]\ncouplings: {J: 1.0}\nbonds:\n\
+                     - {from: a, to: a, cell: [1, 0, 0], coupling: J}\n\
+                     - {from: a, to: a, cell: [0, 1, 0], coupling: J}\n\
+                     - {from: a, to: a, cell: [0, 0, 1], coupling: J}\n";
+        let l = Lattice::from_yaml_str(cubic, "sc.yaml").expect("a valid lattice");
+        let ops = symmetry::point_group(&l);
+        assert_eq!(ops.len(), 48);
+        let step = 1.0 / 64.0;
+        assert_eq!(distinct_neighbours(&ops, &[0.0; 3], 3, step).len(), 2);
+        // At R = (½, ½, ½) as at Γ; at X = (½, 0, 0) the little group D4h splits
+        // ⟨100⟩ into the axis and the plane, ⟨110⟩ into those with and those without a
+        // component along the axis: four classes.
+        assert_eq!(distinct_neighbours(&ops, &[0.5; 3], 3, step).len(), 2);
+        assert_eq!(
+            distinct_neighbours(&ops, &[0.5, 0.0, 0.0], 3, step).len(),
+            4
+        );
+        assert_eq!(
+            distinct_neighbours(&ops, &[0.1, 0.2, 0.3], 3, step).len(),
+            18
+        );
     }
 
     /// The square antiferromagnet (J = −1), nearest neighbours only.

@@ -79,3 +79,75 @@ fn spectrum_at_commensurate_wavevectors_is_the_supercell_spectrum() {
         }
     }
 }
+
+#[test]
+fn real_forms_keep_the_spectrum_at_complex_wavevectors() {
+    // H(q)* = H(−q) for a real Hessian; an operation mapping q to −q makes H(q) unitarily
+    // equivalent to a real symmetric matrix (Wigner's antiunitary symmetry; common
+    // practice). The real form must give the same lowest eigenvalue, an eigenvector of
+    // H(q) itself, and the same answers to the positive-definiteness test.
+    use rungs_lattice::symmetry;
+    use rungs_solve::qspace::RealForms;
+    for (stem, name, t, h) in [
+        ("square", "plaquette", 2.6, 0.0),
+        ("triangular", "triangles", 4.0, 0.0),
+        ("kagome", "triangles", 2.5, 0.0),
+        ("honeycomb", "pair", 1.8, 0.0),
+        ("diamond", "stars", 3.0, 0.0),
+        ("simple_cubic", "cube", 4.7, 0.0),
+        ("fcc_af", "tetrahedra", 2.0, 0.0),
+        ("square", "plaquette", 1.5, 0.7),
+        ("triangular", "triangles", 2.0, 1.3),
+    ] {
+        let l = shipped(stem);
+        let lv = level(&l, name);
+        let f = Functional::new(&lv, t, h);
+        let (free, block) = if h == 0.0 {
+            (Block::even(&lv), Block::odd(&lv))
+        } else {
+            (Block::all(&lv), Block::all(&lv))
+        };
+        let x = minimise(&f, product_state(&f, 0.1), &free, NewtonOptions::default())
+            .unwrap()
+            .x;
+        let ops = symmetry::level_group(&lv, &symmetry::point_group(&l));
+        let forms = RealForms::new(&lv, &ops, &block);
+        let plain = QHessian::scaled(&f, &l, &x, block.clone(), false).unwrap();
+        let real = QHessian::scaled(&f, &l, &x, block.clone(), false)
+            .unwrap()
+            .with_real_forms(&forms);
+        let d = l.dimension();
+        let mut covered = 0;
+        for q in [
+            [0.13, 0.29, 0.41],
+            [1.0 / 3.0, 1.0 / 6.0, 0.0],
+            [0.37, 0.0, 0.11],
+            [0.25, 0.25, 0.25],
+        ] {
+            let mut q = q;
+            q[d..].iter_mut().for_each(|c| *c = 0.0);
+            covered += usize::from(forms.applies_at(&q));
+            let exact = plain.lowest_value(&q);
+            let mode = real.lowest(&q);
+            let tag = format!("{stem} {name} h = {h} q = {q:?}");
+            assert!(
+                (mode.value - exact).abs() < 1e-10 * (1.0 + exact.abs()),
+                "{tag}"
+            );
+            assert!(
+                (real.lowest_value(&q) - exact).abs() < 1e-10 * (1.0 + exact.abs()),
+                "{tag}"
+            );
+            // An eigenvector of the complex H(q), of unit norm.
+            let m = plain.matrix(&q);
+            let v = &mode.vector;
+            assert!((v.norm() - 1.0).abs() < 1e-10, "{tag}");
+            assert!((&m * v - v.map(|z| z * mode.value)).norm() < 1e-9, "{tag}");
+            for (shift, pd) in [(exact - 1e-6, true), (exact + 1e-6, false)] {
+                assert_eq!(real.is_positive_definite_above(&q, shift), pd, "{tag}");
+            }
+        }
+        // Every lattice here has an inversion centre: every wavevector has a real form.
+        assert_eq!(covered, 4, "{stem} {name}");
+    }
+}
