@@ -40,7 +40,10 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     println!("level built in {:.3} ms", 1e3 * built);
     let mut previous = built;
     let log = log.into_inner().unwrap_or_default();
-    for (t, stage) in log.iter().chain([(end, format!("end: Tc {:?}", cp.tc))].iter()) {
+    for (t, stage) in log
+        .iter()
+        .chain([(end, format!("end: Tc {:?}", cp.tc))].iter())
+    {
         println!("{:10.3} ms (+{:.3}) {stage}", 1e3 * t, 1e3 * (t - previous));
         previous = *t;
     }

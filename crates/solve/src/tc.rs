@@ -460,13 +460,18 @@ pub fn critical_temperature_observed(
         q,
         projection: Some(Projection::new(level, &ops, &q, &sector)),
     };
-    let mut qs: Vec<Wavevector> = special_points(d);
-    for (q, _) in maxima {
-        if !qs.iter().any(|p| same_q(p, &q, d)) {
+    // One candidate per star of the level's group (the others have the same spectrum):
+    // on a cubic level the eight special points are four (Γ, X, M, R).
+    let mut qs: Vec<Wavevector> = Vec::new();
+    for q in special_points(d)
+        .into_iter()
+        .chain(maxima.into_iter().map(|(q, _)| q))
+    {
+        if !qs.iter().any(|p| in_star(&ops, p, &q, d)) {
             qs.push(q);
         }
     }
-    let candidates: Vec<Candidate> = qs.into_iter().map(watch).collect();
+    let candidates: Vec<Candidate> = qs.iter().copied().map(watch).collect();
     let mut probe = QProbe {
         lattice,
         follower: &follower,
@@ -488,12 +493,16 @@ pub fn critical_temperature_observed(
         },
         None => StepRules::default(),
     };
-    let verify = irreducible(
+    // The grid's stars less those of the candidates, whose full H(q) is checked anyway.
+    let verify: Vec<Wavevector> = irreducible(
         &ops,
         d,
         zone_grid(d, verification_grid(d)),
         verification_grid(d),
-    );
+    )
+    .into_iter()
+    .filter(|g| !qs.iter().any(|c| in_star(&ops, c, g, d)))
+    .collect();
     let mut t_start = options.start_below.unwrap_or(scale * 1.02);
     let mut notes = Vec::new();
     for _round in 0..4 {
@@ -906,7 +915,9 @@ fn finish(
             "the instability is degenerate over the whole zone (a flat band: every wavevector goes soft at this Tc, as for strongly frustrated couplings); the wavevector and pattern reported are one choice among many, and the ordered phase, if any, is not determined by this level".to_string(),
         );
     }
-    for dir in directions(d).into_iter().filter(|_| !zone_flat) {
+    // One direction of each class under the operations that keep the spectrum about q.
+    let line_dirs = one_per_class(&keeping_spectrum(ops, &q, d), directions(d), 1.0);
+    for dir in line_dirs.into_iter().filter(|_| !zone_flat) {
         let flat = [0.05, 0.1, 0.2].iter().all(|&s| {
             let mut p = q;
             for k in 0..d {
@@ -989,60 +1000,87 @@ fn directions(d: usize) -> Vec<Wavevector> {
 }
 
 /// The compass neighbours `q* ± step·dir` of q* whose spectra may differ: one of each
-/// class under the operations of `ops` that fix q* (δ ↦ R⁻ᵀδ) and those that map q* to
-/// −q* (δ ↦ −R⁻ᵀδ, as `H(−q) = H(q)*` has the spectrum of H(q)). At q* = 0 on a cubic
-/// level the 18 neighbours are two classes.
+/// class under [`keeping_spectrum`]. At q* = 0 on a cubic level the 18 neighbours are
+/// two classes.
 fn distinct_neighbours(
     ops: &[symmetry::SiteMap],
     q_star: &Wavevector,
     d: usize,
     step: f64,
 ) -> Vec<Wavevector> {
-    let act = |inv: &[[i32; 3]; 3], v: &Wavevector| -> Wavevector {
-        let mut p = [0.0; 3];
-        for (i, pi) in p.iter_mut().enumerate() {
-            *pi = (0..3).map(|k| f64::from(inv[k][i]) * v[k]).sum();
-        }
-        p
-    };
-    let same =
-        |a: &Wavevector, b: &Wavevector| (0..d).all(|k| crate::qspace::near_integer(a[k] - b[k]));
-    // (R⁻¹, sign): δ ↦ sign·R⁻ᵀδ keeps the spectrum.
-    let maps: Vec<([[i32; 3]; 3], f64)> = ops
+    let deltas: Vec<Wavevector> = directions(d)
         .iter()
+        .flat_map(|dir| [1.0, -1.0].map(|sgn| dir.map(|c| sgn * step * c)))
+        .collect();
+    one_per_class(&keeping_spectrum(ops, q_star, d), deltas, step)
+        .into_iter()
+        .map(|delta| {
+            let mut p = *q_star;
+            for k in 0..d {
+                p[k] += delta[k];
+            }
+            p
+        })
+        .collect()
+}
+
+/// The maps of displacements δ from q* that keep the spectrum of `H(q* + δ)`:
+/// `δ ↦ R⁻ᵀδ` for the operations of `ops` that fix q*, and `δ ↦ −R⁻ᵀδ` for those that
+/// map q* to −q* (`H(−q) = H(q)*` has the spectrum of H(q)); as (R⁻¹, sign).
+fn keeping_spectrum(
+    ops: &[symmetry::SiteMap],
+    q_star: &Wavevector,
+    d: usize,
+) -> Vec<([[i32; 3]; 3], f64)> {
+    ops.iter()
         .filter_map(|op| inverse3(&op.rot))
         .filter_map(|inv| {
-            let img = act(&inv, q_star);
-            if same(&img, q_star) {
+            let img = act_on_q(&inv, q_star);
+            if (0..d).all(|k| crate::qspace::near_integer(img[k] - q_star[k])) {
                 Some((inv, 1.0))
-            } else if same(&img, &q_star.map(|v| -v)) {
+            } else if (0..d).all(|k| crate::qspace::near_integer(img[k] + q_star[k])) {
                 Some((inv, -1.0))
             } else {
                 None
             }
         })
-        .collect();
-    let key = |v: &Wavevector| v.map(|c| (c / step).round() as i64);
+        .collect()
+}
+
+/// `(R⁻¹)ᵀ v` for `inv` = R⁻¹: the image of a wavevector (or a displacement of one).
+fn act_on_q(inv: &[[i32; 3]; 3], v: &Wavevector) -> Wavevector {
+    let mut p = [0.0; 3];
+    for (i, pi) in p.iter_mut().enumerate() {
+        *pi = (0..3).map(|k| f64::from(inv[k][i]) * v[k]).sum();
+    }
+    p
+}
+
+/// One displacement of each class under `maps` (see [`keeping_spectrum`]), in the order
+/// given; displacements are compared on a grid of spacing `unit`.
+fn one_per_class(
+    maps: &[([[i32; 3]; 3], f64)],
+    deltas: Vec<Wavevector>,
+    unit: f64,
+) -> Vec<Wavevector> {
+    let key = |v: &Wavevector| v.map(|c| (c / unit).round() as i64);
     let mut seen = std::collections::HashSet::new();
     let mut out = Vec::new();
-    for dir in directions(d) {
-        for sgn in [1.0, -1.0] {
-            let delta = dir.map(|c| sgn * step * c);
-            if seen.contains(&key(&delta)) {
-                continue;
-            }
-            seen.insert(key(&delta));
-            for (inv, sign) in &maps {
-                seen.insert(key(&act(inv, &delta).map(|c| sign * c)));
-            }
-            let mut p = *q_star;
-            for k in 0..d {
-                p[k] += delta[k];
-            }
-            out.push(p);
+    for delta in deltas {
+        if !seen.insert(key(&delta)) {
+            continue;
         }
+        for (inv, sign) in maps {
+            seen.insert(key(&act_on_q(inv, &delta).map(|c| sign * c)));
+        }
+        out.push(delta);
     }
     out
+}
+
+/// Whether q is in the star of p under `ops`, or its negative is.
+fn in_star(ops: &[symmetry::SiteMap], p: &Wavevector, q: &Wavevector, d: usize) -> bool {
+    star_under(ops, p, d).iter().any(|s| same_q(s, q, d))
 }
 
 /// The distinct images of q under the lattice's point group (q ↦ R⁻ᵀ q for cell maps R).
@@ -1190,6 +1228,20 @@ mod tests {
             distinct_neighbours(&ops, &[0.1, 0.2, 0.3], 3, step).len(),
             18
         );
+        // The eight special points are four stars, Γ, X, M and R.
+        let x = [0.5, 0.0, 0.0];
+        assert!(in_star(&ops, &x, &[0.0, 0.0, 0.5], 3));
+        assert!(!in_star(&ops, &x, &[0.5, 0.5, 0.0], 3));
+        let specials = special_points(3);
+        let stars = specials
+            .iter()
+            .enumerate()
+            .filter(|&(i, q)| !specials[..i].iter().any(|p| in_star(&ops, p, q, 3)))
+            .count();
+        assert_eq!(stars, 4);
+        // The lines through Γ: ⟨100⟩ and ⟨110⟩, two classes of the nine directions.
+        let maps = keeping_spectrum(&ops, &[0.0; 3], 3);
+        assert_eq!(one_per_class(&maps, directions(3), 1.0).len(), 2);
     }
 
     /// The square antiferromagnet (J = −1), nearest neighbours only.
