@@ -19,7 +19,7 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::file::Figure;
 use super::style::{linear_range, nice_range};
-use rungs_reference::ladder::{Extrapolated, Ladder, ReferenceKind};
+use rungs_reference::ladder::{Extrapolated, Ladder, ReferenceKind, RungResult};
 
 /// Height of the figure and width of each panel, in pixels.
 const HEIGHT: u32 = 640;
@@ -110,8 +110,8 @@ fn draw_main<DB: DrawingBackend>(
         "Tc   (units of J / k_B)",
         ticks,
     )?;
-    draw_reference(&mut chart, ladder)?;
-    draw_extrapolations(&mut chart, ladder)?;
+    let referenced = draw_reference(&mut chart, ladder)?;
+    let extrapolated = draw_extrapolations(&mut chart, ladder)?;
     // The rungs last, on top: one circle and one label each, placed by `place_labels`
     // so that no label covers another or another rung.
     let font = ("sans-serif", 15).into_font();
@@ -142,7 +142,37 @@ fn draw_main<DB: DrawingBackend>(
         );
     }
     chart.draw_series(placed)?;
-    draw_legend(&mut chart, SeriesLabelPosition::UpperLeft)
+    // Rungs without a Tc have no point: say which, and why, in the lower left corner.
+    let listed = |skipped: bool| -> Vec<String> {
+        ladder
+            .rungs
+            .iter()
+            .filter(|r| r.tc.is_none() && r.skipped.is_some() == skipped)
+            .map(|r: &RungResult| format!("{} ({})", r.level, r.max_cluster_sites))
+            .collect()
+    };
+    let mut lines = Vec::new();
+    for (skipped, what) in [(false, "no transition found"), (true, "not computed")] {
+        let rungs = listed(skipped);
+        if !rungs.is_empty() {
+            lines.push(format!("{what}: {}", rungs.join(", ")));
+        }
+    }
+    let style = ("sans-serif", 14)
+        .into_font()
+        .color(&RGBColor(90, 90, 90))
+        .pos(Pos::new(HPos::Left, VPos::Bottom));
+    for (i, line) in lines.into_iter().rev().enumerate() {
+        chart.draw_series(std::iter::once(
+            EmptyElement::at((X_RANGE.0 + 0.01, y0 + 0.02 * (y1 - y0)))
+                + Text::new(line, (0, -18 * i as i32), style.clone()),
+        ))?;
+    }
+    // No reference and no extrapolation: no legend (an empty box otherwise).
+    if referenced || extrapolated {
+        draw_legend(&mut chart, SeriesLabelPosition::UpperLeft)?;
+    }
+    Ok(())
 }
 
 /// The pixel offsets of the labels of `points` (data coordinates, label text) from their
@@ -254,13 +284,14 @@ type Chart<'a, DB> = ChartContext<
     Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
 >;
 
-/// The reference as a horizontal line (with its error band for Monte Carlo), labelled.
+/// The reference as a horizontal line (with its error band for Monte Carlo), labelled;
+/// whether there was one (a legend entry).
 fn draw_reference<DB: DrawingBackend>(
     chart: &mut Chart<DB>,
     ladder: &Ladder,
-) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+) -> Result<bool, DrawingAreaErrorKind<DB::ErrorType>> {
     let Some(r) = &ladder.reference else {
-        return Ok(());
+        return Ok(false);
     };
     let (x0, x1) = X_RANGE;
     if let Some(e) = r.tc_error.filter(|e| *e > 0.0) {
@@ -301,14 +332,16 @@ fn draw_reference<DB: DrawingBackend>(
                 ShapeStyle::from(&REFERENCE).stroke_width(2),
             )
         });
-    Ok(())
+    Ok(true)
 }
 
-/// The inverse-size line with its band and the coherent-anomaly Tc* with its error bar.
+/// The inverse-size line with its band and the coherent-anomaly Tc* with its error bar;
+/// whether either was drawn (a legend entry).
 fn draw_extrapolations<DB: DrawingBackend>(
     chart: &mut Chart<DB>,
     ladder: &Ladder,
-) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+) -> Result<bool, DrawingAreaErrorKind<DB::ErrorType>> {
+    let mut drawn = false;
     let x_end = ladder
         .rungs
         .iter()
@@ -338,6 +371,7 @@ fn draw_extrapolations<DB: DrawingBackend>(
                             ShapeStyle::from(&LINE).stroke_width(2),
                         )
                     });
+                drawn = true;
             }
             ("coherent-anomaly", _) => {
                 // The error bar: a vertical stroke with caps.
@@ -363,11 +397,12 @@ fn draw_extrapolations<DB: DrawingBackend>(
                         e.tc, e.tc_error
                     ))
                     .legend(|(x, y)| TriangleMarker::new((x + 12, y), 7, CAM.filled()));
+                drawn = true;
             }
             _ => {}
         }
     }
-    Ok(())
+    Ok(drawn)
 }
 
 /// One rung of the coherent-anomaly fit: label, ln(Tc_n − Tc*) at Tc* and at Tc* ± its
@@ -496,7 +531,6 @@ fn draw_coherent_anomaly<DB: DrawingBackend>(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use rungs_reference::ladder::RungResult;
 
     #[test]
     fn the_tc_axis_ends_on_a_tick_above_the_top_rung() {
@@ -540,6 +574,49 @@ mod tests {
             "{step}"
         );
         assert!(hi - 4.0 < 2.0 * step, "no needless empty band: {hi}");
+    }
+
+    #[test]
+    fn a_ladder_without_reference_or_extrapolation_has_no_empty_legend() {
+        // Figure input only (no physics checked here): a made-up frustrated lattice whose
+        // pair rung finds no transition, and no reference or extrapolation to show.
+        let rung = |level: &str, sites: usize, tc: Option<f64>| RungResult {
+            level: level.into(),
+            max_cluster_sites: sites,
+            variables: 1,
+            tc,
+            amplitude: None,
+            mode: None,
+            searched_down_to: None,
+            seconds: 0.0,
+            skipped: None,
+        };
+        let ladder = Ladder {
+            lattice: "made_up".into(),
+            dimension: 3,
+            reference: None,
+            rungs: vec![
+                rung("site", 1, Some(3.8)),
+                rung("pair", 2, None),
+                rung("cube", 8, Some(2.32)),
+            ],
+            extrapolations: Vec::new(),
+            notes: Vec::new(),
+        };
+        let svg = crate::plot::file::render_svg(&ladder).expect("the figure renders");
+        // The legend's border colour (180, 180, 180) appears only with a legend.
+        assert!(
+            !svg.to_uppercase().contains("#B4B4B4"),
+            "an empty legend box"
+        );
+        assert!(svg.contains("no transition found: pair (2)"));
+        // A rung that was not computed is not said to have no transition.
+        let mut skipped = ladder;
+        skipped.rungs[2].tc = None;
+        skipped.rungs[2].skipped = Some("too large".into());
+        let svg = crate::plot::file::render_svg(&skipped).expect("the figure renders");
+        assert!(svg.contains("no transition found: pair (2)"));
+        assert!(svg.contains("not computed: cube (8)"));
     }
 
     #[test]
