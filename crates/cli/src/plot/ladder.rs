@@ -532,33 +532,46 @@ fn draw_coherent_anomaly<DB: DrawingBackend>(
 mod tests {
     use super::*;
 
-    #[test]
-    fn the_tc_axis_ends_on_a_tick_above_the_top_rung() {
-        let rung = |level: &str, sites: usize, tc: f64| RungResult {
+    /// A rung for figure tests: its level, largest cluster and Tc, nothing else.
+    fn rung(level: &str, sites: usize, tc: Option<f64>) -> RungResult {
+        RungResult {
             level: level.into(),
             max_cluster_sites: sites,
             variables: 1,
-            tc: Some(tc),
+            tc,
             amplitude: None,
             mode: None,
             searched_down_to: None,
             seconds: 0.0,
             skipped: None,
-        };
-        // Figure input only (no physics checked here): the site, pair and plaquette Tc of
-        // lattices/square.yaml as `rungs ladder` prints them.
-        let ladder = Ladder {
-            lattice: "square".into(),
-            dimension: 2,
+        }
+    }
+
+    /// A ladder of `rungs` alone: no reference, no extrapolation, no notes.
+    fn bare_ladder(lattice: &str, dimension: usize, rungs: Vec<RungResult>) -> Ladder {
+        Ladder {
+            lattice: lattice.into(),
+            dimension,
             reference: None,
-            rungs: vec![
-                rung("site", 1, 4.0),
-                rung("pair", 2, 2.885),
-                rung("plaquette", 4, 2.4257),
-            ],
+            rungs,
             extrapolations: Vec::new(),
             notes: Vec::new(),
-        };
+        }
+    }
+
+    #[test]
+    fn the_tc_axis_ends_on_a_tick_above_the_top_rung() {
+        // Figure input only (no physics checked here): the site, pair and plaquette Tc of
+        // lattices/square.yaml as `rungs ladder` prints them.
+        let ladder = bare_ladder(
+            "square",
+            2,
+            vec![
+                rung("site", 1, Some(4.0)),
+                rung("pair", 2, Some(2.885)),
+                rung("plaquette", 4, Some(2.4257)),
+            ],
+        );
         let (lo, hi, ticks) = y_range(&ladder);
         let step = (hi - lo) / (ticks - 1) as f64;
         assert!(hi >= 4.0 && lo <= 2.4257, "{lo}..{hi}");
@@ -580,29 +593,15 @@ mod tests {
     fn a_ladder_without_reference_or_extrapolation_has_no_empty_legend() {
         // Figure input only (no physics checked here): a made-up frustrated lattice whose
         // pair rung finds no transition, and no reference or extrapolation to show.
-        let rung = |level: &str, sites: usize, tc: Option<f64>| RungResult {
-            level: level.into(),
-            max_cluster_sites: sites,
-            variables: 1,
-            tc,
-            amplitude: None,
-            mode: None,
-            searched_down_to: None,
-            seconds: 0.0,
-            skipped: None,
-        };
-        let ladder = Ladder {
-            lattice: "made_up".into(),
-            dimension: 3,
-            reference: None,
-            rungs: vec![
+        let ladder = bare_ladder(
+            "made_up",
+            3,
+            vec![
                 rung("site", 1, Some(3.8)),
                 rung("pair", 2, None),
                 rung("cube", 8, Some(2.32)),
             ],
-            extrapolations: Vec::new(),
-            notes: Vec::new(),
-        };
+        );
         let svg = crate::plot::file::render_svg(&ladder).expect("the figure renders");
         // The legend's border colour (180, 180, 180) appears only with a legend.
         assert!(
