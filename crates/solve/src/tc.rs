@@ -10,7 +10,8 @@
 //!
 //! The minimum over q is taken over candidates: the points with every component 0 or 1/2
 //! (the zone centre and the zone-boundary points where Néel and layered orders live), and
-//! the maxima of the mean-field coupling `J(q)`. The step-down and Brent root of
+//! the maxima of the mean-field coupling `J(q)`, one per star of the level's point group
+//! (wavevectors of one star have the same spectrum). The step-down and Brent root of
 //! [`crate::search`] find Tc for the candidates; then the wavevector is refined locally
 //! at Tc, and the stability of every wavevector of a grid over the zone is checked just
 //! above Tc. A wavevector found unstable there joins the candidates and the search runs
