@@ -511,8 +511,8 @@ fn variable_image(
     index.get(&canon).map(|&w| (w, t))
 }
 
-/// Whether the operation with cell matrix `r` maps q to −q modulo reciprocal lattice vectors: `q·(R n + n) ∈ ℤ` on the
-/// unit cells n (the counterpart of [`fixes`]).
+/// Whether the operation with cell matrix `r` maps q to −q modulo reciprocal lattice
+/// vectors: `q·(R n + n) ∈ ℤ` on the unit cells n (the counterpart of [`fixes`]).
 fn reverses(r: &[[i32; 3]; 3], q: &Wavevector) -> bool {
     (0..3).all(|k| {
         let d = q[0] * f64::from(r[0][k] + i32::from(k == 0))
