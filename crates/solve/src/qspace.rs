@@ -396,7 +396,7 @@ impl Projection {
         block: &crate::functional::Block,
     ) -> Projection {
         let index = variable_index(level);
-        let little: Vec<&SiteMap> = ops.iter().filter(|op| fixes(op, q)).collect();
+        let little: Vec<&SiteMap> = ops.iter().filter(|op| sends_q(&op.rot, q, 1)).collect();
         let mut rows = vec![(usize::MAX, Complex::new(0.0, 0.0)); block.vars.len()];
         let mut done = vec![false; level.variables.len()];
         let mut columns = 0;
@@ -461,17 +461,15 @@ impl Projection {
     }
 }
 
-/// Whether `op` maps q to itself (q ↦ R⁻ᵀ q, modulo reciprocal lattice vectors); the
-/// test `q·(R n) ≡ q·n` on the unit cells n is equivalent.
-fn fixes(op: &SiteMap, q: &Wavevector) -> bool {
+/// Whether the operation with cell matrix `r` maps q to `sign·q` modulo reciprocal
+/// lattice vectors (q ↦ R⁻ᵀ q): the test `q·(R n − sign·n) ∈ ℤ` on the unit cells n is
+/// equivalent. `sign = 1`: r fixes q (the little group); `sign = −1`: r reverses it.
+pub(crate) fn sends_q(r: &[[i32; 3]; 3], q: &Wavevector, sign: i32) -> bool {
     (0..3).all(|k| {
-        let mut e = [0i32; 3];
-        e[k] = 1;
-        let r = &op.rot;
-        let img = [r[0][k], r[1][k], r[2][k]];
-        let d = q[0] * (img[0] - e[0]) as f64
-            + q[1] * (img[1] - e[1]) as f64
-            + q[2] * (img[2] - e[2]) as f64;
+        let e = |i: usize| sign * i32::from(i == k);
+        let d = q[0] * f64::from(r[0][k] - e(0))
+            + q[1] * f64::from(r[1][k] - e(1))
+            + q[2] * f64::from(r[2][k] - e(2));
         near_integer(d)
     })
 }
@@ -509,17 +507,6 @@ fn variable_image(
             .map(|&(c, b)| (b, [c[0] - t[0], c[1] - t[1], c[2] - t[2]])),
     );
     index.get(&canon).map(|&w| (w, t))
-}
-
-/// Whether the operation with cell matrix `r` maps q to −q modulo reciprocal lattice
-/// vectors: `q·(R n + n) ∈ ℤ` on the unit cells n (the counterpart of [`fixes`]).
-fn reverses(r: &[[i32; 3]; 3], q: &Wavevector) -> bool {
-    (0..3).all(|k| {
-        let d = q[0] * f64::from(r[0][k] + i32::from(k == 0))
-            + q[1] * f64::from(r[1][k] + i32::from(k == 1))
-            + q[2] * f64::from(r[2][k] + i32::from(k == 2));
-        near_integer(d)
-    })
 }
 
 /// Real symmetric forms of `H(q)` at complex wavevectors, from the point-group
@@ -589,7 +576,7 @@ impl RealForms {
     fn basis(&self, q: &Wavevector) -> Option<Vec<RealColumn>> {
         let zero = Complex::new(0.0, 0.0);
         self.maps.iter().find_map(|Involution { rot, rows }| {
-            if !reverses(rot, q) {
+            if !sends_q(rot, q, -1) {
                 return None;
             }
             let phi: Vec<Complex<f64>> = rows.iter().map(|(_, t)| phase(q, t).conj()).collect();

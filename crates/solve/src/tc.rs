@@ -33,7 +33,7 @@ use crate::error::SolveError;
 pub use crate::ordering::ModeKind;
 use crate::ordering::Ordering;
 use crate::qspace::{
-    coupling_top, is_real, LowestMode, Projection, QHessian, RealForms, Wavevector,
+    coupling_top, is_real, sends_q, LowestMode, Projection, QHessian, RealForms, Wavevector,
 };
 use crate::search::{refine_known, step_down, Bracket, Probe, StepRules};
 use rayon::prelude::*;
@@ -596,14 +596,7 @@ pub fn critical_temperature_observed(
             observe("ordering pattern and critical amplitude");
             let chosen = &probe.candidates.borrow()[arg];
             let cp = finish(
-                lattice,
-                level,
-                (&ops, &forms),
-                &follower,
-                tc,
-                chosen,
-                &mut notes,
-                start,
+                lattice, level, &ops, &forms, &follower, tc, chosen, &mut notes, start,
             )?;
             return Ok(cp);
         }
@@ -644,10 +637,7 @@ fn irreducible(
         }
         for inv in &inverses {
             // q' = (R⁻¹)ᵀ q, and −q'.
-            let mut p = [0.0; 3];
-            for (i, pi) in p.iter_mut().enumerate() {
-                *pi = (0..3).map(|k| inv[k][i] as f64 * q[k]).sum();
-            }
+            let p = act_on_q(inv, &q);
             seen.insert(key(&p));
             seen.insert(key(&p.map(|v| -v)));
         }
@@ -856,7 +846,8 @@ fn no_transition(
 fn finish(
     lattice: &Lattice,
     level: &Level,
-    (ops, forms): (&[symmetry::SiteMap], &RealForms),
+    ops: &[symmetry::SiteMap],
+    forms: &RealForms,
     follower: &Disordered,
     tc: f64,
     chosen: &Candidate,
@@ -917,7 +908,7 @@ fn finish(
         );
     }
     // One direction of each class under the operations that keep the spectrum about q.
-    let line_dirs = one_per_class(&keeping_spectrum(ops, &q, d), directions(d), 1.0);
+    let line_dirs = one_per_class(&keeping_spectrum(ops, &q), directions(d), 1.0);
     for dir in line_dirs.into_iter().filter(|_| !zone_flat) {
         let flat = [0.05, 0.1, 0.2].iter().all(|&s| {
             let mut p = q;
@@ -1013,7 +1004,7 @@ fn distinct_neighbours(
         .iter()
         .flat_map(|dir| [1.0, -1.0].map(|sgn| dir.map(|c| sgn * step * c)))
         .collect();
-    one_per_class(&keeping_spectrum(ops, q_star, d), deltas, step)
+    one_per_class(&keeping_spectrum(ops, q_star), deltas, step)
         .into_iter()
         .map(|delta| {
             let mut p = *q_star;
@@ -1028,22 +1019,17 @@ fn distinct_neighbours(
 /// The maps of displacements δ from q* that keep the spectrum of `H(q* + δ)`:
 /// `δ ↦ R⁻ᵀδ` for the operations of `ops` that fix q*, and `δ ↦ −R⁻ᵀδ` for those that
 /// map q* to −q* (`H(−q) = H(q)*` has the spectrum of H(q)); as (R⁻¹, sign).
-fn keeping_spectrum(
-    ops: &[symmetry::SiteMap],
-    q_star: &Wavevector,
-    d: usize,
-) -> Vec<([[i32; 3]; 3], f64)> {
+fn keeping_spectrum(ops: &[symmetry::SiteMap], q_star: &Wavevector) -> Vec<([[i32; 3]; 3], f64)> {
     ops.iter()
-        .filter_map(|op| inverse3(&op.rot))
-        .filter_map(|inv| {
-            let img = act_on_q(&inv, q_star);
-            if (0..d).all(|k| crate::qspace::near_integer(img[k] - q_star[k])) {
-                Some((inv, 1.0))
-            } else if (0..d).all(|k| crate::qspace::near_integer(img[k] + q_star[k])) {
-                Some((inv, -1.0))
+        .filter_map(|op| {
+            let sign = if sends_q(&op.rot, q_star, 1) {
+                1.0
+            } else if sends_q(&op.rot, q_star, -1) {
+                -1.0
             } else {
-                None
-            }
+                return None;
+            };
+            Some((inverse3(&op.rot)?, sign))
         })
         .collect()
 }
@@ -1096,12 +1082,7 @@ fn star_under(ops: &[symmetry::SiteMap], q: &Wavevector, d: usize) -> Vec<Waveve
         let Some(inv) = inverse3(&op.rot) else {
             continue;
         };
-        // q' = (R⁻¹)ᵀ q
-        let mut p = [0.0; 3];
-        for (i, pi) in p.iter_mut().enumerate() {
-            *pi = (0..3).map(|k| inv[k][i] as f64 * q[k]).sum();
-        }
-        let p = canonical(&p, d);
+        let p = canonical(&act_on_q(&inv, q), d);
         let eq = |a: &Wavevector, b: &Wavevector| {
             (0..d).all(|k| crate::qspace::near_integer(a[k] - b[k]))
         };
@@ -1241,7 +1222,7 @@ mod tests {
             .count();
         assert_eq!(stars, 4);
         // The lines through Γ: ⟨100⟩ and ⟨110⟩, two classes of the nine directions.
-        let maps = keeping_spectrum(&ops, &[0.0; 3], 3);
+        let maps = keeping_spectrum(&ops, &[0.0; 3]);
         assert_eq!(one_per_class(&maps, directions(3), 1.0).len(), 2);
     }
 
