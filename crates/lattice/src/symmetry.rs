@@ -57,8 +57,15 @@ type FoundOp = (Vec<usize>, Vec<Cell>, [[i32; 3]; 3]);
 type Parents = [Option<(usize, Cell, u64)>];
 
 /// Every candidate R: entries in {−1, 0, 1} on the lattice's dimensions, identity on the
-/// unused ones, det ±1.
-fn candidate_rotations(d: usize) -> Vec<[[i32; 3]; 3]> {
+/// unused ones, det ±1. The list depends on the dimension only: built once per process
+/// (3⁹ matrices in three dimensions, a tenth of a millisecond that every Tc search paid).
+fn candidate_rotations(d: usize) -> &'static [[[i32; 3]; 3]] {
+    static BUILT: [std::sync::OnceLock<Vec<[[i32; 3]; 3]>>; 4] =
+        [const { std::sync::OnceLock::new() }; 4];
+    BUILT[d.min(3)].get_or_init(|| unimodular(d.min(3)))
+}
+
+fn unimodular(d: usize) -> Vec<[[i32; 3]; 3]> {
     let cells = d * d;
     let mut out = Vec::new();
     for code in 0..3usize.pow(cells as u32) {
@@ -152,8 +159,8 @@ pub fn point_group(lattice: &Lattice) -> Vec<SiteMap> {
                 vectors.contains(&(rc, j))
             })
     };
-    for rot in candidate_rotations(lattice.dimension())
-        .into_iter()
+    for &rot in candidate_rotations(lattice.dimension())
+        .iter()
         .filter(|r| keeps_bonds(r))
     {
         for first in 0..nb {
@@ -272,7 +279,7 @@ fn compose(a: &SiteMap, b: &SiteMap) -> SiteMap {
 
 /// Whether `ops` is closed under composition (a group, as maps of sites).
 fn is_group(ops: &[SiteMap]) -> bool {
-    let set: std::collections::HashSet<&SiteMap> = ops.iter().collect();
+    let set: foldhash::HashSet<&SiteMap> = ops.iter().collect();
     ops.iter()
         .all(|a| ops.iter().all(|b| set.contains(&compose(a, b))))
 }
@@ -282,7 +289,7 @@ fn is_group(ops: &[SiteMap]) -> bool {
 /// once from its first variable (orbits × |ops| images); otherwise the orbits of the
 /// group `ops` generates are found by union–find over every variable and operation.
 pub fn variable_orbits(level: &Level, ops: &[SiteMap]) -> Vec<usize> {
-    let index: HashMap<&Cluster, usize> = level
+    let index: foldhash::HashMap<&Cluster, usize> = level
         .variables
         .iter()
         .enumerate()

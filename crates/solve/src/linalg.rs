@@ -170,6 +170,21 @@ pub fn solve_spd(m: &DMatrix<f64>, rhs: &[f64]) -> Option<Vec<f64>> {
     Some(SpdFactor::new(m)?.solve(rhs))
 }
 
+/// The Schur complement `C − Bᵀ A⁻¹ B` of a real symmetric positive definite `A`:
+/// with `A = L Lᵀ` and `Y = L⁻¹ B`, it is `C − Yᵀ Y`. `None` when A is not positive
+/// definite.
+pub fn schur_complement(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    c: &DMatrix<f64>,
+) -> Option<DMatrix<f64>> {
+    let l = cholesky(to_faer(a))?;
+    let mut y = to_faer(b);
+    solve_lower_triangular_in_place(l.as_ref(), y.as_mut(), par(a.nrows()));
+    let y = DMatrix::from_fn(b.nrows(), b.ncols(), |i, j| y[(i, j)]);
+    Some(c - y.transpose() * y)
+}
+
 /// Whether a real symmetric matrix is positive definite (Cholesky succeeds).
 pub fn positive_definite_real(m: &DMatrix<f64>) -> bool {
     m.nrows() == 0 || cholesky(to_faer(m)).is_some()

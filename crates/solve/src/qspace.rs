@@ -19,7 +19,7 @@
 //! the ordering wavevector and the eigenvector the ordering pattern. Site-level check:
 //! `λ(q) = T/(1 − m²) − J(q)` (mean field).
 
-use std::collections::HashMap;
+use std::sync::{Arc, Mutex};
 
 use nalgebra::{Complex, DMatrix, DVector};
 use rungs_lattice::symmetry::SiteMap;
@@ -66,6 +66,9 @@ pub struct QHessian<'f> {
     row_scale: Vec<f64>,
     /// Real forms at complex wavevectors (see [`RealForms`]), when given.
     real: Option<&'f RealForms>,
+    /// `H(q) − s·I` with its private variables eliminated, per shift s (built on first
+    /// use; see [`Condensed`]).
+    condensed: Mutex<Vec<(u64, Arc<Reduced>)>>,
 }
 
 /// The lowest eigenvalue of `H(q)` and its unit eigenvector (on the block).
@@ -119,6 +122,7 @@ impl<'f> QHessian<'f> {
             block,
             row_scale,
             real: None,
+            condensed: Mutex::new(Vec::new()),
         })
     }
 
@@ -351,6 +355,11 @@ impl<'f> QHessian<'f> {
         if self.block.vars.is_empty() {
             return true;
         }
+        match &*self.reduced(shift) {
+            Reduced::Indefinite => return false,
+            Reduced::Condensed(c) => return self.condensed_positive_definite(c, q, shift),
+            Reduced::Full => {}
+        }
         if is_real(q) {
             let mut m = self.real_matrix(q);
             for i in 0..m.nrows() {
@@ -369,6 +378,184 @@ impl<'f> QHessian<'f> {
                 m[(i, i)] -= shift;
             }
             linalg::positive_definite_complex(&m)
+        }
+    }
+}
+
+/// `H(q) − s·I` with its *private* variables eliminated. A variable of the block that
+/// occurs in one region at one subset only (in the cube approximation of the simple
+/// cubic lattice the 5- and 7-site correlations and the triangles that leave every face:
+/// 96 of the odd sector's 109) couples to nothing outside that region's copy in its own
+/// cell, so the private block of `H(q)` is `Φ† (K_PP − s·I) Φ`, one region kernel per
+/// copy under unit phases Φ, the same at every q. Eliminating it leaves the Schur
+/// complement on the shared variables,
+///
+/// ```text
+/// S(q) = Σ_γ B_γ(q)† (K_EE − K_EP (K_PP − s·I)⁻¹ K_PE) B_γ(q) + (energy terms) − s·I,
+/// ```
+///
+/// assembled with the phases `B_γ(q)` of the region's shared subsets exactly as `H(q)` is
+/// from `K_EE` alone. By Haynsworth's inertia additivity `In(H − s) = In(K_PP − s) +
+/// In(S)`, so `H(q) − s·I` is positive definite exactly when every `K_PP − s·I` (one
+/// factorisation per region and shift, at any q) and `S(q)` (13 × 13 for the cube) are.
+pub(crate) struct Condensed {
+    /// Per block row: its row of `S(q)` (`usize::MAX` for a private row).
+    shared_row: Vec<usize>,
+    /// Order of `S(q)`.
+    shared: usize,
+    /// Per region kernel: its masks on shared rows and, where it has private masks, the
+    /// Schur complement on them (scaled by the rows' `D^{-1/2}`); `None` where the kernel
+    /// has no private mask and its own entries are used.
+    local: Vec<(Vec<usize>, Option<DMatrix<f64>>)>,
+}
+
+/// What the elimination of private variables gives for one shift.
+pub(crate) enum Reduced {
+    /// No private variable (or kernels kept in double-double): factorise `H(q)` itself.
+    Full,
+    /// Some `K_PP − s·I` is not positive definite: neither is `H(q) − s·I`, at any q.
+    Indefinite,
+    /// Factorise `S(q)` instead of `H(q)`.
+    Condensed(Condensed),
+}
+
+impl QHessian<'_> {
+    /// The elimination of private variables for shift `s`, built once per shift.
+    fn reduced(&self, s: f64) -> Arc<Reduced> {
+        let key = s.to_bits();
+        if let Ok(cache) = self.condensed.lock() {
+            if let Some((_, r)) = cache.iter().find(|(k, _)| *k == key) {
+                return Arc::clone(r);
+            }
+        }
+        let r = Arc::new(self.condense(s));
+        if let Ok(mut cache) = self.condensed.lock() {
+            cache.push((key, Arc::clone(&r)));
+        }
+        r
+    }
+
+    /// The order of the matrix that the definiteness tests factorise: the number of
+    /// shared variables after the private ones are eliminated (see [`Condensed`]), or the
+    /// block's order where nothing is eliminated.
+    pub fn factorised_order(&self) -> usize {
+        match &*self.reduced(0.0) {
+            Reduced::Condensed(c) => c.shared,
+            _ => self.block.vars.len(),
+        }
+    }
+
+    fn condense(&self, s: f64) -> Reduced {
+        if self.kernels.iter().any(|k| k.kernel_lo.is_some()) {
+            return Reduced::Full;
+        }
+        let m = self.block.vars.len();
+        let mut count = vec![0usize; m];
+        for (k, offs) in self.kernels.iter().zip(&self.offsets) {
+            for (_, row, _) in self.block_masks(k, offs) {
+                count[row] += 1;
+            }
+        }
+        for &(a, b, _, _) in &self.quad {
+            for v in [a, b] {
+                if let Some(c) = count.get_mut(self.block.pos[v]) {
+                    *c += 2;
+                }
+            }
+        }
+        let mut shared = 0;
+        let shared_row: Vec<usize> = count
+            .iter()
+            .map(|&c| {
+                if c == 1 {
+                    usize::MAX
+                } else {
+                    shared += 1;
+                    shared - 1
+                }
+            })
+            .collect();
+        if shared == m {
+            return Reduced::Full;
+        }
+        let rs = &self.row_scale;
+        let mut local = Vec::with_capacity(self.kernels.len());
+        for (k, offs) in self.kernels.iter().zip(&self.offsets) {
+            let (mut e, mut p) = (Vec::new(), Vec::new());
+            for (mask, row, _) in self.block_masks(k, offs) {
+                if shared_row[row] == usize::MAX {
+                    p.push((mask, row));
+                } else {
+                    e.push((mask, row));
+                }
+            }
+            let masks: Vec<usize> = e.iter().map(|&(c, _)| c).collect();
+            if p.is_empty() {
+                local.push((masks, None));
+                continue;
+            }
+            let entry =
+                |(c, rc): (usize, usize), (d, rd): (usize, usize)| k.entry(c, d) * rs[rc] * rs[rd];
+            let kpp = DMatrix::from_fn(p.len(), p.len(), |i, j| {
+                entry(p[i], p[j]) - if i == j { s } else { 0.0 }
+            });
+            let kpe = DMatrix::from_fn(p.len(), e.len(), |i, j| entry(p[i], e[j]));
+            let kee = DMatrix::from_fn(e.len(), e.len(), |i, j| entry(e[i], e[j]));
+            let Some(g) = linalg::schur_complement(&kpp, &kpe, &kee) else {
+                return Reduced::Indefinite;
+            };
+            local.push((masks, Some(g)));
+        }
+        Reduced::Condensed(Condensed {
+            shared_row,
+            shared,
+            local,
+        })
+    }
+
+    /// Whether `S(q)` of `c` (see [`Condensed`]) is positive definite.
+    fn condensed_positive_definite(&self, c: &Condensed, q: &Wavevector, s: f64) -> bool {
+        let n = c.shared;
+        let mut h = DMatrix::<Complex<f64>>::zeros(n, n);
+        let rs = &self.row_scale;
+        let mut rows: Vec<(usize, usize, Complex<f64>)> = Vec::new();
+        for ((k, offs), (masks, g)) in self.kernels.iter().zip(&self.offsets).zip(&c.local) {
+            rows.clear();
+            rows.extend(masks.iter().map(|&mask| {
+                let row = self.block.pos[k.vars[mask] as usize];
+                let ph = phase(q, &offs[mask]);
+                // The Schur complement carries the rows' scale already.
+                let scale = if g.is_some() { 1.0 } else { rs[row] };
+                (mask, c.shared_row[row], ph * scale)
+            }));
+            match g {
+                None => hermitian_pairs(&rows, k, &mut h),
+                Some(g) => {
+                    for (i, &(_, ri, pi)) in rows.iter().enumerate() {
+                        h[(ri, ri)] += pi.norm_sqr() * g[(i, i)];
+                        let pi = pi.conj();
+                        for (j, &(_, rj, pj)) in rows.iter().enumerate().skip(i + 1) {
+                            add_upper(&mut h, ri, rj, pi * pj * g[(i, j)]);
+                        }
+                    }
+                }
+            }
+        }
+        for &(a, b, coef, cell) in &self.quad {
+            let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
+            if pa != usize::MAX && pb != usize::MAX {
+                let ph = phase(q, &cell) * (coef * rs[pa] * rs[pb]);
+                add_upper(&mut h, c.shared_row[pa], c.shared_row[pb], ph);
+            }
+        }
+        for i in 0..n {
+            h[(i, i)] -= s;
+        }
+        mirror_upper(&mut h);
+        if is_real(q) {
+            linalg::positive_definite_real(&h.map(|z| z.re))
+        } else {
+            linalg::positive_definite_complex(&h)
         }
     }
 }
@@ -475,7 +662,7 @@ pub(crate) fn sends_q(r: &[[i32; 3]; 3], q: &Wavevector, sign: i32) -> bool {
 }
 
 /// Every variable of `level` by its cluster.
-fn variable_index(level: &Level) -> HashMap<&Cluster, usize> {
+fn variable_index(level: &Level) -> foldhash::HashMap<&Cluster, usize> {
     level
         .variables
         .iter()
@@ -489,7 +676,7 @@ fn variable_index(level: &Level) -> HashMap<&Cluster, usize> {
 /// image is not a variable of the level.
 fn variable_image(
     level: &Level,
-    index: &HashMap<&Cluster, usize>,
+    index: &foldhash::HashMap<&Cluster, usize>,
     op: &SiteMap,
     v: usize,
 ) -> Option<(usize, Cell)> {
@@ -686,6 +873,48 @@ impl QHessian<'_> {
         h
     }
 
+    /// [`Self::projected_matrix`] at a wavevector whose phases are all real (see
+    /// [`is_real`]), where the symmetric modes' coefficients are real too: a real
+    /// symmetric matrix, summed in real arithmetic.
+    fn projected_real_matrix(&self, q: &Wavevector, proj: &Projection) -> DMatrix<f64> {
+        let m = proj.columns;
+        let mut h = DMatrix::<f64>::zeros(m, m);
+        let mut rows = Vec::new();
+        for (k, offs) in self.kernels.iter().zip(&self.offsets) {
+            rows.clear();
+            rows.extend(self.block_masks(k, offs).filter_map(|(mask, row, t)| {
+                let (col, a) = proj.rows[row];
+                (col != usize::MAX).then(|| {
+                    (
+                        mask,
+                        col,
+                        phase(q, t).re.signum() * a.re * self.row_scale[row],
+                    )
+                })
+            }));
+            symmetric_pairs(&rows, k, &mut h);
+        }
+        for &(a, b, c, cell) in &self.quad {
+            let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
+            if pa == usize::MAX || pb == usize::MAX {
+                continue;
+            }
+            let ((ca, aa), (cb, ab)) = (proj.rows[pa], proj.rows[pb]);
+            if ca != usize::MAX && cb != usize::MAX {
+                let ph = phase(q, &cell).re.signum() * self.row_scale[pa] * self.row_scale[pb];
+                let (lo, hi) = (ca.min(cb), ca.max(cb));
+                let v = aa.re * ab.re * ph * c;
+                h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
+            }
+        }
+        for j in 0..m {
+            for i in 0..j {
+                h[(j, i)] = h[(i, j)];
+            }
+        }
+        h
+    }
+
     /// The smallest eigenvalue on the symmetric subspace and its eigenvector written on
     /// the block.
     pub fn projected_lowest(&self, q: &Wavevector, proj: &Projection) -> LowestMode {
@@ -697,7 +926,7 @@ impl QHessian<'_> {
         }
         let lowest = if is_real(q) {
             // Real phases and coefficients: a real symmetric matrix (a quarter of the work).
-            linalg::lowest_real(&self.projected_matrix(q, proj).map(|c| c.re))
+            linalg::lowest_real(&self.projected_real_matrix(q, proj))
                 .map(|(v, y)| (v, y.map(|x| Complex::new(x, 0.0))))
         } else {
             linalg::lowest_complex(&self.projected_matrix(q, proj))
@@ -720,7 +949,7 @@ impl QHessian<'_> {
             return f64::INFINITY;
         }
         if is_real(q) {
-            linalg::min_eigenvalue_real(&self.projected_matrix(q, proj).map(|c| c.re))
+            linalg::min_eigenvalue_real(&self.projected_real_matrix(q, proj))
         } else {
             linalg::min_eigenvalue_complex(&self.projected_matrix(q, proj))
         }
@@ -796,6 +1025,14 @@ pub fn coupling_matrix(lattice: &Lattice, q: &Wavevector) -> DMatrix<Complex<f64
 
 /// The largest eigenvalue of `J(q)`.
 pub fn coupling_top(lattice: &Lattice, q: &Wavevector) -> f64 {
+    if lattice.sites_per_cell() == 1 {
+        // One site per cell: J(q) = Σ_bonds 2J cos(2π q·δ) is its own eigenvalue.
+        return lattice
+            .bonds()
+            .iter()
+            .map(|b| 2.0 * b.j * phase(q, &b.cell).re)
+            .sum();
+    }
     coupling_matrix(lattice, q)
         .symmetric_eigenvalues()
         .iter()

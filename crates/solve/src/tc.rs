@@ -122,13 +122,16 @@ pub fn zone_grid(dimension: usize, n: usize) -> Vec<Wavevector> {
     let mut out: Vec<Wavevector> = Vec::new();
     for code in 0..total {
         let mut q = [0.0; 3];
-        let mut c = code;
+        // The code of −q: each digit c becomes (n − c) mod n. The first of each pair in
+        // code order is kept.
+        let (mut c, mut neg, mut place) = (code, 0, 1);
         for comp in q.iter_mut().take(dimension) {
             *comp = (c % n) as f64 / n as f64;
+            neg += (n - c % n) % n * place;
+            place *= n;
             c /= n;
         }
-        let neg = canonical(&q.map(|v| -v), dimension);
-        if !out.iter().any(|p| same_q(p, &neg, dimension)) {
+        if neg >= code {
             out.push(q);
         }
     }
@@ -548,7 +551,7 @@ pub fn critical_temperature_observed(
         let qh = QHessian::scaled(&f, lattice, &x, follower.sector(), false)
             .ok_or_else(|| infeasible(&level.name, tc))?
             .with_real_forms(&forms);
-        let (_, arg) =
+        let (value_star, arg) =
             {
                 let c = probe.candidates.borrow();
                 c.iter().enumerate().map(|(i, c)| (c.value(&qh), i)).fold(
@@ -557,8 +560,17 @@ pub fn critical_temperature_observed(
                 )
             };
         let q_star = probe.candidates.borrow()[arg].q;
-        let lam_star = qh.lowest_value(&q_star);
         let tol = TIE;
+        // The lowest eigenvalue of the full H(q*): the candidate's own value (within the
+        // tolerance) unless one factorisation says the full block goes lower, and only
+        // then an eigensolve.
+        let watched_whole = probe.candidates.borrow()[arg].projection.is_none();
+        let lam_star = if watched_whole || qh.is_positive_definite_above(&q_star, value_star - tol)
+        {
+            value_star
+        } else {
+            qh.lowest_value(&q_star)
+        };
         // A local minimum over q is kept as it is (points of high symmetry stay exact);
         // otherwise the compass search moves it.
         let step = 1.0 / 64.0;
@@ -580,7 +592,7 @@ pub fn critical_temperature_observed(
             new_q.push(watch(canonical(&q_ref, d)));
         }
         // The symmetric subspace may have missed a less symmetric mode at q*.
-        if lam_star < probe.candidates.borrow()[arg].value(&qh) - tol {
+        if lam_star < value_star - tol {
             new_q.push(Candidate {
                 q: q_star,
                 projection: None,
