@@ -398,7 +398,7 @@ impl<'f> QHessian<'f> {
 /// from `K_EE` alone. By Haynsworth's inertia additivity `In(H − s) = In(K_PP − s) +
 /// In(S)`, so `H(q) − s·I` is positive definite exactly when every `K_PP − s·I` (one
 /// factorisation per region and shift, at any q) and `S(q)` (13 × 13 for the cube) are.
-pub(crate) struct Condensed {
+pub struct Condensed {
     /// Per block row: its row of `S(q)` (`usize::MAX` for a private row).
     shared_row: Vec<usize>,
     /// Order of `S(q)`.
