@@ -264,6 +264,26 @@ pub fn log_range(values: impl IntoIterator<Item = f64>, decades: f64) -> (f64, f
     (lo / 1.5, hi * 1.5, cut)
 }
 
+/// Tick values of a log axis over `[lo, hi]`: 1, 2 and 5 times each power of ten (only
+/// the powers of ten when the axis spans more than three decades), so that every decade
+/// the curves cross is labelled. (Plotters' own log ticks can leave the lower decades of
+/// a susceptibility falling toward zero without a single label.)
+pub fn log_ticks(lo: f64, hi: f64) -> Vec<f64> {
+    if !(lo > 0.0 && hi > lo && hi.is_finite()) {
+        return Vec::new();
+    }
+    let mantissas: &[f64] = if hi / lo > 1e3 {
+        &[1.0]
+    } else {
+        &[1.0, 2.0, 5.0]
+    };
+    let (first, last) = (lo.log10().floor() as i32, hi.log10().ceil() as i32);
+    (first..=last)
+        .flat_map(|k| mantissas.iter().map(move |m| m * 10f64.powi(k)))
+        .filter(|&v| v >= lo * (1.0 - 1e-12) && v <= hi * (1.0 + 1e-12))
+        .collect()
+}
+
 /// A short label for a source string: the "Author (year)" parts of each
 /// `;`-separated reference, e.g. "Onsager (1944), Yang (1952)".
 pub fn short_source(source: &str) -> String {
@@ -325,6 +345,18 @@ mod tests {
         let segs = clip(&[(0.0, 1.0), (1.0, 100.0)], 0.1, 10.0, true);
         assert_eq!(segs.len(), 1);
         assert!((segs[0][1].0 - 0.5).abs() < 1e-12 && (segs[0][1].1 - 10.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn log_ticks_label_every_decade_crossed() {
+        // A susceptibility falling from 0.09 to 0.002: ticks in both decades.
+        assert_eq!(
+            log_ticks(0.0013, 0.14),
+            vec![0.002, 0.005, 0.01, 0.02, 0.05, 0.1]
+        );
+        // Wide axes: powers of ten only.
+        assert_eq!(log_ticks(0.5, 2e4), vec![1.0, 10.0, 100.0, 1000.0, 10000.0]);
+        assert!(log_ticks(0.0, 1.0).is_empty());
     }
 
     #[test]

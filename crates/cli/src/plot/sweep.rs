@@ -28,8 +28,8 @@ use rungs_solve::Observables;
 
 use super::file::Figure;
 use super::style::{
-    clip, curve_style, draw_line, linear_range, log_range, marker, short_source, tick, Dash,
-    Marker, DASHES, EXACT, MARKERS, PALETTE,
+    clip, curve_style, draw_line, linear_range, log_range, log_ticks, marker, short_source, tick,
+    Dash, Marker, DASHES, EXACT, MARKERS, PALETTE,
 };
 
 /// One level's points and Tc.
@@ -447,7 +447,7 @@ fn draw_panel<DB: DrawingBackend>(
         format!("{}{note}", q.label())
     };
     if q == Quantity::Chi {
-        let y = LogCoord::from((lo..hi).log_scale());
+        let y = (lo..hi).log_scale().with_key_points(log_ticks(lo, hi));
         panel(area, q, curves, x, y, &desc, true, (lo, hi))
     } else {
         let y = RangedCoordf64::from(lo..hi);
