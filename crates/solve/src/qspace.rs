@@ -26,7 +26,7 @@ use rungs_lattice::symmetry::SiteMap;
 use rungs_lattice::{Cell, Cluster, Lattice, Level};
 
 use crate::dd::Dd;
-use crate::functional::{upper_pairs, Block, Functional, RegionKernel};
+use crate::functional::{upper_pairs, Block, Functional, KernelKind, RegionKernel};
 use crate::linalg;
 
 /// A wavevector in units of the reciprocal primitive vectors (unused components 0).
@@ -409,6 +409,36 @@ pub struct Condensed {
     local: Vec<(Vec<usize>, Option<DMatrix<f64>>)>,
 }
 
+/// The scaled kernel entries `K(c, d)·D_c^{-1/2}·D_d^{-1/2}` for the (mask, block row)
+/// lists `a` (rows of the result) and `b` (columns).
+fn kernel_block(
+    k: &RegionKernel<'_>,
+    rs: &[f64],
+    a: &[(usize, usize)],
+    b: &[(usize, usize)],
+) -> DMatrix<f64> {
+    let (rows, cols) = (a.len(), b.len());
+    let mut out = vec![0.0; rows * cols];
+    let scaled: Vec<f64> = match k.kind {
+        KernelKind::Xor => k.kernel.iter().map(|v| v * k.scale).collect(),
+        KernelKind::And => Vec::new(),
+    };
+    let wa: Vec<(usize, f64)> = a.iter().map(|&(c, r)| (c, rs[r])).collect();
+    for (column, &(d, rd)) in out.chunks_exact_mut(rows.max(1)).zip(b) {
+        let w = rs[rd];
+        if scaled.is_empty() {
+            for (o, &(c, v)) in column.iter_mut().zip(&wa) {
+                *o = k.entry(c, d) * v * w;
+            }
+        } else {
+            for (o, &(c, v)) in column.iter_mut().zip(&wa) {
+                *o = scaled[c ^ d] * v * w;
+            }
+        }
+    }
+    DMatrix::from_vec(rows, cols, out)
+}
+
 /// What the elimination of private variables gives for one shift.
 pub(crate) enum Reduced {
     /// No private variable (or kernels kept in double-double): factorise `H(q)` itself.
@@ -420,18 +450,19 @@ pub(crate) enum Reduced {
 }
 
 impl QHessian<'_> {
-    /// The elimination of private variables for shift `s`, built once per shift.
+    /// The elimination of private variables for shift `s`, built once per shift (under
+    /// the lock: threads checking wavevectors side by side wait for one build instead of
+    /// each factorising the private blocks).
     fn reduced(&self, s: f64) -> Arc<Reduced> {
         let key = s.to_bits();
-        if let Ok(cache) = self.condensed.lock() {
-            if let Some((_, r)) = cache.iter().find(|(k, _)| *k == key) {
-                return Arc::clone(r);
-            }
+        let Ok(mut cache) = self.condensed.lock() else {
+            return Arc::new(self.condense(s));
+        };
+        if let Some((_, r)) = cache.iter().find(|(k, _)| *k == key) {
+            return Arc::clone(r);
         }
         let r = Arc::new(self.condense(s));
-        if let Ok(mut cache) = self.condensed.lock() {
-            cache.push((key, Arc::clone(&r)));
-        }
+        cache.push((key, Arc::clone(&r)));
         r
     }
 
@@ -494,13 +525,12 @@ impl QHessian<'_> {
                 local.push((masks, None));
                 continue;
             }
-            let entry =
-                |(c, rc): (usize, usize), (d, rd): (usize, usize)| k.entry(c, d) * rs[rc] * rs[rd];
-            let kpp = DMatrix::from_fn(p.len(), p.len(), |i, j| {
-                entry(p[i], p[j]) - if i == j { s } else { 0.0 }
-            });
-            let kpe = DMatrix::from_fn(p.len(), e.len(), |i, j| entry(p[i], e[j]));
-            let kee = DMatrix::from_fn(e.len(), e.len(), |i, j| entry(e[i], e[j]));
+            let mut kpp = kernel_block(k, rs, &p, &p);
+            for i in 0..p.len() {
+                kpp[(i, i)] -= s;
+            }
+            let kpe = kernel_block(k, rs, &p, &e);
+            let kee = kernel_block(k, rs, &e, &e);
             let Some(g) = linalg::schur_complement(&kpp, &kpe, &kee) else {
                 return Reduced::Indefinite;
             };
