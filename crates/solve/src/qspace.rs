@@ -439,6 +439,9 @@ fn kernel_block(
     DMatrix::from_vec(rows, cols, out)
 }
 
+/// One end of a bond on a symmetric subspace: (column, coefficient).
+type ProjectedEnd = (usize, Complex<f64>);
+
 /// What the elimination of private variables gives for one shift.
 pub(crate) enum Reduced {
     /// No private variable (or kernels kept in double-double): factorise `H(q)` itself.
@@ -888,19 +891,29 @@ impl QHessian<'_> {
             }
             hermitian_pairs(&rows, k, &mut h);
         }
-        for &(a, b, c, cell) in &self.quad {
-            let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
-            if pa == usize::MAX || pb == usize::MAX {
-                continue;
-            }
-            let ((ca, aa), (cb, ab)) = (proj.rows[pa], proj.rows[pb]);
-            if ca != usize::MAX && cb != usize::MAX {
-                let ph = phase(q, &cell) * self.row_scale[pa] * self.row_scale[pb];
-                add_upper(&mut h, ca, cb, aa.conj() * ab * ph * c);
-            }
+        for ((ca, aa), (cb, ab), (pa, pb), c, cell) in self.projected_quad(proj) {
+            let ph = phase(q, &cell) * self.row_scale[pa] * self.row_scale[pb];
+            add_upper(&mut h, ca, cb, aa.conj() * ab * ph * c);
         }
         mirror_upper(&mut h);
         h
+    }
+
+    /// The factorised bonds on the symmetric subspace of `proj`: ((column, coefficient) of
+    /// each end, the ends' block rows, the coefficient c, the bond's cell); bonds with an
+    /// end outside the block or the subspace left out.
+    fn projected_quad<'s>(
+        &'s self,
+        proj: &'s Projection,
+    ) -> impl Iterator<Item = (ProjectedEnd, ProjectedEnd, (usize, usize), f64, Cell)> + 's {
+        self.quad.iter().filter_map(move |&(a, b, c, cell)| {
+            let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
+            if pa == usize::MAX || pb == usize::MAX {
+                return None;
+            }
+            let (ea, eb) = (proj.rows[pa], proj.rows[pb]);
+            (ea.0 != usize::MAX && eb.0 != usize::MAX).then_some((ea, eb, (pa, pb), c, cell))
+        })
     }
 
     /// [`Self::projected_matrix`] at a wavevector whose phases are all real (see
@@ -924,18 +937,11 @@ impl QHessian<'_> {
             }));
             symmetric_pairs(&rows, k, &mut h);
         }
-        for &(a, b, c, cell) in &self.quad {
-            let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
-            if pa == usize::MAX || pb == usize::MAX {
-                continue;
-            }
-            let ((ca, aa), (cb, ab)) = (proj.rows[pa], proj.rows[pb]);
-            if ca != usize::MAX && cb != usize::MAX {
-                let ph = phase(q, &cell).re.signum() * self.row_scale[pa] * self.row_scale[pb];
-                let (lo, hi) = (ca.min(cb), ca.max(cb));
-                let v = aa.re * ab.re * ph * c;
-                h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
-            }
+        for ((ca, aa), (cb, ab), (pa, pb), c, cell) in self.projected_quad(proj) {
+            let ph = phase(q, &cell).re.signum() * self.row_scale[pa] * self.row_scale[pb];
+            let (lo, hi) = (ca.min(cb), ca.max(cb));
+            let v = aa.re * ab.re * ph * c;
+            h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
         }
         for j in 0..m {
             for i in 0..j {

@@ -101,15 +101,7 @@ fn real_forms_keep_the_spectrum_at_complex_wavevectors() {
     ] {
         let l = shipped(stem);
         let lv = level(&l, name);
-        let f = Functional::new(&lv, t, h);
-        let (free, block) = if h == 0.0 {
-            (Block::even(&lv), Block::odd(&lv))
-        } else {
-            (Block::all(&lv), Block::all(&lv))
-        };
-        let x = minimise(&f, product_state(&f, 0.1), &free, NewtonOptions::default())
-            .unwrap()
-            .x;
+        let (f, block, x) = disordered(&lv, t, h);
         let ops = symmetry::level_group(&lv, &symmetry::point_group(&l));
         let forms = RealForms::new(&lv, &ops, &block);
         let plain = QHessian::scaled(&f, &l, &x, block.clone(), false).unwrap();
@@ -174,15 +166,7 @@ fn eliminating_private_variables_keeps_every_definiteness_answer() {
     ] {
         let l = shipped(stem);
         let lv = level(&l, name);
-        let f = Functional::new(&lv, t, h);
-        let (free, block) = if h == 0.0 {
-            (Block::even(&lv), Block::odd(&lv))
-        } else {
-            (Block::all(&lv), Block::all(&lv))
-        };
-        let x = minimise(&f, product_state(&f, 0.1), &free, NewtonOptions::default())
-            .unwrap()
-            .x;
+        let (f, block, x) = disordered(&lv, t, h);
         let qh = QHessian::scaled(&f, &l, &x, block.clone(), false).unwrap();
         let ops = symmetry::level_group(&lv, &symmetry::point_group(&l));
         let order = qh.factorised_order();
@@ -235,4 +219,19 @@ fn eliminating_private_variables_keeps_every_definiteness_answer() {
             }
         }
     }
+}
+
+/// The disordered state of `lv` at (t, h) from a weakly ordered start, with the block
+/// whose stability decides its Tc: the odd sector at h = 0, every variable in a field.
+fn disordered(lv: &rungs_lattice::Level, t: f64, h: f64) -> (Functional<'_>, Block, Vec<f64>) {
+    let f = Functional::new(lv, t, h);
+    let (free, block) = if h == 0.0 {
+        (Block::even(lv), Block::odd(lv))
+    } else {
+        (Block::all(lv), Block::all(lv))
+    };
+    let x = minimise(&f, product_state(&f, 0.1), &free, NewtonOptions::default())
+        .unwrap()
+        .x;
+    (f, block, x)
 }
