@@ -5,7 +5,7 @@ mod common;
 
 use common::*;
 use rungs_solve::equilibrium::{minimise, product_state, NewtonOptions};
-use rungs_solve::functional::{Block, Functional};
+use rungs_solve::functional::{Basis, Block, Functional};
 use rungs_solve::qspace::{coupling_top, QHessian};
 use rungs_solve::supercell::{expand, variable_map};
 
@@ -167,6 +167,29 @@ fn eliminating_private_variables_keeps_every_definiteness_answer() {
         let l = shipped(stem);
         let lv = level(&l, name);
         let (f, block, x) = disordered(&lv, t, h);
+        // In a field, also the same state's matrix in flip probabilities (the basis a
+        // strongly polarised state keeps, whose kernels are read differently).
+        if h != 0.0 {
+            let flip = Functional::with_basis(
+                &lv,
+                t,
+                h,
+                Basis::Flip {
+                    pattern: vec![1.0; lv.sites_per_cell],
+                },
+                None,
+            );
+            let y = f.convert(&x, flip.basis()).unwrap();
+            let qf = QHessian::scaled(&flip, &l, &y, block.clone(), false).unwrap();
+            assert!(qf.factorised_order() < block.vars.len());
+            for q in [[0.0, 0.0, 0.0], [0.5, 0.5, 0.0], [0.13, 0.29, 0.0]] {
+                let exact = qf.lowest_value(&q);
+                for (shift, pd) in [(exact - 1e-7, true), (exact + 1e-7, false)] {
+                    let tag = format!("{stem} {name} flip basis q = {q:?}: λ = {exact}");
+                    assert_eq!(qf.is_positive_definite_above(&q, shift), pd, "{tag}");
+                }
+            }
+        }
         let qh = QHessian::scaled(&f, &l, &x, block.clone(), false).unwrap();
         let ops = symmetry::level_group(&lv, &symmetry::point_group(&l));
         let order = qh.factorised_order();
