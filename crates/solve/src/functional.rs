@@ -860,39 +860,26 @@ impl<'a> Functional<'a> {
                         acc[at] += if v2 { v + v } else { v };
                     },
                 );
-            } else if k.kind == KernelKind::Xor {
-                // The same visits as `upper_pairs` below, in the same order (so the same
-                // sums to the last bit), written out for the Walsh kernel: the Newton
-                // Hessians of the Tc search spend most of their time here.
-                let scaled: Vec<f64> = k.kernel.iter().map(|v| v * k.scale).collect();
-                let hs = h.as_mut_slice();
-                for (i, &(c, rc)) in rows.iter().enumerate() {
-                    hs[rc + m * rc] += scaled[0];
-                    for &(d, rd) in &rows[i + 1..] {
-                        let v = scaled[c ^ d];
-                        match rc.cmp(&rd) {
-                            std::cmp::Ordering::Less => hs[rc + m * rd] += v,
-                            std::cmp::Ordering::Greater => hs[rd + m * rc] += v,
-                            std::cmp::Ordering::Equal => hs[rc + m * rc] += v + v,
-                        }
-                    }
-                }
             } else {
                 let scaled: Vec<f64> = k.kernel.iter().map(|v| v * k.scale).collect();
-                let entry = |c: usize, d: usize| match k.kind {
-                    KernelKind::Xor => scaled[c ^ d],
-                    KernelKind::And => parity_sign(c ^ d) * scaled[c & d],
-                };
                 let hs = h.as_mut_slice();
-                upper_pairs(
-                    &rows,
-                    |r| r.1,
-                    m,
-                    |at, v2, (c, _), (d, _)| {
-                        let v = entry(c, d);
-                        hs[at] += if v2 { v + v } else { v };
-                    },
-                );
+                let mut add = |at: usize, v2: bool, v: f64| hs[at] += if v2 { v + v } else { v };
+                // The kernel's kind chosen once per region, not once per pair: the Newton
+                // Hessians of the Tc search spend most of their time in these visits.
+                match k.kind {
+                    KernelKind::Xor => upper_pairs(
+                        &rows,
+                        |r| r.1,
+                        m,
+                        |at, v2, (c, _), (d, _)| add(at, v2, scaled[c ^ d]),
+                    ),
+                    KernelKind::And => upper_pairs(
+                        &rows,
+                        |r| r.1,
+                        m,
+                        |at, v2, (c, _), (d, _)| add(at, v2, parity_sign(c ^ d) * scaled[c & d]),
+                    ),
+                }
             }
         }
         for &(a, b, c) in self.quadratic_terms() {

@@ -255,11 +255,7 @@ impl<'f> QHessian<'f> {
                 h[(lo, hi)] += if lo == hi { 2.0 * ph } else { ph };
             }
         }
-        for j in 0..m {
-            for i in 0..j {
-                h[(j, i)] = h[(i, j)];
-            }
-        }
+        h.fill_lower_triangle_with_upper_triangle();
         h
     }
 
@@ -554,24 +550,19 @@ impl QHessian<'_> {
         let mut rows: Vec<(usize, usize, Complex<f64>)> = Vec::new();
         for ((k, offs), (masks, g)) in self.kernels.iter().zip(&self.offsets).zip(&c.local) {
             rows.clear();
-            rows.extend(masks.iter().map(|&mask| {
+            // A kernel's own entries are read by mask and scaled here; the local Schur
+            // complement is read by position and carries the rows' scale already.
+            rows.extend(masks.iter().enumerate().map(|(i, &mask)| {
                 let row = self.block.pos[k.vars[mask] as usize];
                 let ph = phase(q, &offs[mask]);
-                // The Schur complement carries the rows' scale already.
-                let scale = if g.is_some() { 1.0 } else { rs[row] };
-                (mask, c.shared_row[row], ph * scale)
+                match g {
+                    None => (mask, c.shared_row[row], ph * rs[row]),
+                    Some(_) => (i, c.shared_row[row], ph),
+                }
             }));
             match g {
                 None => hermitian_pairs(&rows, k, &mut h),
-                Some(g) => {
-                    for (i, &(_, ri, pi)) in rows.iter().enumerate() {
-                        h[(ri, ri)] += pi.norm_sqr() * g[(i, i)];
-                        let pi = pi.conj();
-                        for (j, &(_, rj, pj)) in rows.iter().enumerate().skip(i + 1) {
-                            add_upper(&mut h, ri, rj, pi * pj * g[(i, j)]);
-                        }
-                    }
-                }
+                Some(g) => hermitian_pairs_by(&rows, |i, j| g[(i, j)], &mut h),
             }
         }
         for &(a, b, coef, cell) in &self.quad {
@@ -943,11 +934,7 @@ impl QHessian<'_> {
             let v = aa.re * ab.re * ph * c;
             h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
         }
-        for j in 0..m {
-            for i in 0..j {
-                h[(j, i)] = h[(i, j)];
-            }
-        }
+        h.fill_lower_triangle_with_upper_triangle();
         h
     }
 
@@ -1000,11 +987,21 @@ fn hermitian_pairs(
     k: &RegionKernel<'_>,
     h: &mut DMatrix<Complex<f64>>,
 ) {
+    hermitian_pairs_by(rows, |c, d| k.entry(c, d), h);
+}
+
+/// [`hermitian_pairs`] with the entries `K(c, d)` given by `entry` for the first members
+/// c, d of `rows` (a kernel's masks, or positions in a dense local matrix).
+fn hermitian_pairs_by(
+    rows: &[(usize, usize, Complex<f64>)],
+    entry: impl Fn(usize, usize) -> f64,
+    h: &mut DMatrix<Complex<f64>>,
+) {
     for (i, &(c, rc, pc)) in rows.iter().enumerate() {
-        h[(rc, rc)] += pc.norm_sqr() * k.entry(c, c);
+        h[(rc, rc)] += pc.norm_sqr() * entry(c, c);
         let pc = pc.conj();
         for &(d, rd, pd) in &rows[i + 1..] {
-            add_upper(h, rc, rd, pc * pd * k.entry(c, d));
+            add_upper(h, rc, rd, pc * pd * entry(c, d));
         }
     }
 }

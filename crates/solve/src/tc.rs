@@ -467,11 +467,14 @@ pub fn critical_temperature_observed(
     // One candidate per star of the level's group (the others have the same spectrum):
     // on a cubic level the eight special points are four (Γ, X, M, R).
     let mut qs: Vec<Wavevector> = Vec::new();
+    // The candidates' stars (with −q), each found once.
+    let mut stars: Vec<Vec<Wavevector>> = Vec::new();
     for q in special_points(d)
         .into_iter()
         .chain(maxima.into_iter().map(|(q, _)| q))
     {
-        if !qs.iter().any(|p| in_star(&ops, p, &q, d)) {
+        if !stars.iter().any(|s| in_star(s, &q, d)) {
+            stars.push(star_under(&ops, &q, d));
             qs.push(q);
         }
     }
@@ -505,7 +508,7 @@ pub fn critical_temperature_observed(
         verification_grid(d),
     )
     .into_iter()
-    .filter(|g| !qs.iter().any(|c| in_star(&ops, c, g, d)))
+    .filter(|g| !stars.iter().any(|s| in_star(s, g, d)))
     .collect();
     let mut t_start = options.start_below.unwrap_or(scale * 1.02);
     let mut notes = Vec::new();
@@ -1077,9 +1080,9 @@ fn one_per_class(
     out
 }
 
-/// Whether q is in the star of p under `ops`, or its negative is.
-fn in_star(ops: &[symmetry::SiteMap], p: &Wavevector, q: &Wavevector, d: usize) -> bool {
-    star_under(ops, p, d).iter().any(|s| same_q(s, q, d))
+/// Whether q or −q is in `star` (a star from [`star_under`]).
+fn in_star(star: &[Wavevector], q: &Wavevector, d: usize) -> bool {
+    star.iter().any(|s| same_q(s, q, d))
 }
 
 /// The distinct images of q under the lattice's point group (q ↦ R⁻ᵀ q for cell maps R).
@@ -1224,13 +1227,18 @@ mod tests {
         );
         // The eight special points are four stars, Γ, X, M and R.
         let x = [0.5, 0.0, 0.0];
-        assert!(in_star(&ops, &x, &[0.0, 0.0, 0.5], 3));
-        assert!(!in_star(&ops, &x, &[0.5, 0.5, 0.0], 3));
+        let star_x = star_under(&ops, &x, 3);
+        assert!(in_star(&star_x, &[0.0, 0.0, 0.5], 3));
+        assert!(!in_star(&star_x, &[0.5, 0.5, 0.0], 3));
         let specials = special_points(3);
         let stars = specials
             .iter()
             .enumerate()
-            .filter(|&(i, q)| !specials[..i].iter().any(|p| in_star(&ops, p, q, 3)))
+            .filter(|&(i, q)| {
+                !specials[..i]
+                    .iter()
+                    .any(|p| in_star(&star_under(&ops, p, 3), q, 3))
+            })
             .count();
         assert_eq!(stars, 4);
         // The lines through Γ: ⟨100⟩ and ⟨110⟩, two classes of the nine directions.
