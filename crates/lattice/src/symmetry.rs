@@ -144,7 +144,7 @@ pub fn point_group(lattice: &Lattice) -> Vec<SiteMap> {
     let mut found: BTreeSet<FoundOp> = BTreeSet::new();
     // One site per cell: R must map every bond vector onto a bond vector with the same
     // coupling, a test that discards almost every candidate before any search.
-    let vectors: BTreeSet<(Cell, u64)> = lattice
+    let vectors: foldhash::HashSet<(Cell, u64)> = lattice
         .bonds()
         .iter()
         .flat_map(|b| {
@@ -256,32 +256,43 @@ pub fn group_of(maximal: &[Cluster], ops: &[SiteMap]) -> Vec<SiteMap> {
         .collect()
 }
 
-/// `a ∘ b`: the map `x ↦ a(b(x))`.
-fn compose(a: &SiteMap, b: &SiteMap) -> SiteMap {
+/// Whether `ops` is closed under composition (a group, as maps of sites). Each product
+/// `a ∘ b` is compared in place with the operations of its rotation (without building
+/// it: |ops|² products are tested at every Tc search).
+fn is_group(ops: &[SiteMap]) -> bool {
+    let mut by_rot: foldhash::HashMap<[[i32; 3]; 3], Vec<&SiteMap>> = Default::default();
+    for op in ops {
+        by_rot.entry(op.rot).or_default().push(op);
+    }
+    let is_product = |c: &SiteMap, a: &SiteMap, b: &SiteMap| {
+        b.perm.iter().zip(&b.shift).enumerate().all(|(i, (&p, s))| {
+            let t = a.shift[p];
+            c.perm[i] == a.perm[p]
+                && c.shift[i]
+                    == [0, 1, 2].map(|k| {
+                        a.rot[k][0] * s[0] + a.rot[k][1] * s[1] + a.rot[k][2] * s[2] + t[k]
+                    })
+        })
+    };
+    ops.iter().all(|a| {
+        ops.iter().all(|b| {
+            let rot = compose_rot(&a.rot, &b.rot);
+            by_rot
+                .get(&rot)
+                .is_some_and(|cs| cs.iter().any(|c| is_product(c, a, b)))
+        })
+    })
+}
+
+/// The product of two cell matrices.
+fn compose_rot(a: &[[i32; 3]; 3], b: &[[i32; 3]; 3]) -> [[i32; 3]; 3] {
     let mut rot = [[0i32; 3]; 3];
     for (i, row) in rot.iter_mut().enumerate() {
         for (j, e) in row.iter_mut().enumerate() {
-            *e = (0..3).map(|k| a.rot[i][k] * b.rot[k][j]).sum();
+            *e = (0..3).map(|k| a[i][k] * b[k][j]).sum();
         }
     }
-    let perm: Vec<usize> = b.perm.iter().map(|&p| a.perm[p]).collect();
-    let shift: Vec<Cell> = b
-        .shift
-        .iter()
-        .zip(&b.perm)
-        .map(|(s, &p)| {
-            let t = a.shift[p];
-            [0, 1, 2].map(|i| a.rot[i][0] * s[0] + a.rot[i][1] * s[1] + a.rot[i][2] * s[2] + t[i])
-        })
-        .collect();
-    SiteMap { rot, perm, shift }
-}
-
-/// Whether `ops` is closed under composition (a group, as maps of sites).
-fn is_group(ops: &[SiteMap]) -> bool {
-    let set: foldhash::HashSet<&SiteMap> = ops.iter().collect();
-    ops.iter()
-        .all(|a| ops.iter().all(|b| set.contains(&compose(a, b))))
+    rot
 }
 
 /// Orbit id of every correlation variable under `ops` (ids dense, in order of first

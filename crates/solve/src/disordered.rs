@@ -9,13 +9,14 @@
 //! every variable is free and the flip basis relative to the field's direction keeps
 //! the rare cluster states precise at low temperature.
 
-use std::cell::RefCell;
+use std::cell::{OnceCell, RefCell};
 
 use rungs_lattice::{symmetry, Lattice, Level};
 
-use crate::equilibrium::{minimise, NewtonOptions};
+use crate::equilibrium::{minimise_with, DenseSolver, NewtonOptions};
 use crate::error::SolveError;
 use crate::functional::{Basis, Block, Functional};
+use crate::gram::StateGroups;
 use crate::qspace::{QHessian, Wavevector};
 
 /// Largest cancellation ([`Functional::cancellation`]) at which the disordered state is
@@ -39,10 +40,13 @@ pub struct Disordered<'a> {
     /// The orbit-reduced level and the orbit of every variable, when the lattice has
     /// symmetries.
     reduced: Option<(Level, Vec<usize>)>,
-    /// The last solved temperature and the state there (reduced level).
-    warm: RefCell<Option<(f64, Warm)>>,
+    /// The states solved so far (reduced level), at most [`HISTORY`].
+    history: RefCell<Vec<(f64, Solved)>>,
     /// A temperature where a cold start is easy (well above any Tc).
     t_high: f64,
+    /// The reduced level's cluster states grouped for its even-sector Newton Hessians in
+    /// correlations (h = 0; built on first use, `None` where grouping does not pay).
+    groups: OnceCell<Option<StateGroups>>,
 }
 
 /// A state as a reference and an offset, `r + δ` (reduced level).
@@ -72,7 +76,11 @@ impl Warm {
 /// at every level (common practice: random rounding errors add as a square root).
 pub const WALSH_VIEW_MIN_PROBABILITY: f64 = 1e-12;
 
+/// How many solved states a follower keeps for warm starts and repeated temperatures.
+const HISTORY: usize = 8;
+
 /// A solved disordered state on the reduced level: the reference and the offsets.
+#[derive(Debug, Clone)]
 struct Solved {
     reference: Option<Vec<f64>>,
     x: Vec<f64>,
@@ -112,8 +120,9 @@ impl<'a> Disordered<'a> {
             field,
             basis: disordered_basis(level.sites_per_cell, field),
             reduced,
-            warm: RefCell::new(None),
+            history: RefCell::new(Vec::new()),
             t_high,
+            groups: OnceCell::new(),
         }
     }
 
@@ -145,25 +154,13 @@ impl<'a> Disordered<'a> {
     /// The disordered state at `t`: the functional of the full level (in the
     /// follower's basis, with the reference the state is an offset from) and the state.
     pub fn solve(&self, t: f64) -> Result<(Functional<'a>, Vec<f64>), SolveError> {
-        let warm = self.warm.borrow().clone();
-        let solved = match self.solve_reduced(t, warm.as_ref().map(|w| &w.1)) {
-            // A cold solution is polished once as an offset from itself, which gives
-            // its small cluster probabilities their full relative precision.
-            Ok(s) if warm.is_none() => self.solve_reduced(t, Some(&s.warm())).unwrap_or(s),
-            Ok(s) => s,
-            Err(e) => match &warm {
-                Some((tw, w)) => self.continue_from(*tw, w, t).map_err(|_| e)?,
-                None if t < self.t_high => {
-                    let high = self
-                        .solve_reduced(self.t_high, None)
-                        .map_err(|_| e.clone())?;
-                    self.continue_from(self.t_high, &high.warm(), t)
-                        .map_err(|_| e)?
-                }
-                None => return Err(e),
-            },
+        let history = self.history.borrow().clone();
+        let solved = match history.iter().find(|(tk, _)| *tk == t) {
+            // Asked again (the Tc search's root and its checks): the same state.
+            Some((_, s)) => s.clone(),
+            None => self.solve_new(t, &history)?,
         };
-        *self.warm.borrow_mut() = Some((t, solved.warm()));
+        self.remember(t, &solved);
         let expand = |v: &[f64]| -> Vec<f64> {
             match &self.reduced {
                 Some((_, o)) => o.iter().map(|&k| v[k]).collect(),
@@ -197,6 +194,100 @@ impl<'a> Disordered<'a> {
         let (f, x) = self.solve_for_stability(t).ok()?;
         let qh = QHessian::scaled(&f, lattice, &x, self.sector(), f.is_precise())?;
         Some(qh.lowest_over(qs))
+    }
+
+    /// Solve at a temperature not solved before: from the states solved nearest in
+    /// temperature (see [`Disordered::predicted`]), else cold, else by continuation.
+    fn solve_new(&self, t: f64, history: &[(f64, Solved)]) -> Result<Solved, SolveError> {
+        let nearest = history
+            .iter()
+            .min_by(|a, b| (a.0 - t).abs().total_cmp(&(b.0 - t).abs()))
+            .map(|(tk, s)| (*tk, s.warm()));
+        let start = self
+            .predicted(history, t)
+            .or_else(|| nearest.as_ref().map(|n| n.1.clone()));
+        match self.solve_reduced(t, start.as_ref()) {
+            // A cold solution is polished once as an offset from itself, which gives
+            // its small cluster probabilities their full relative precision.
+            Ok(s) if start.is_none() => Ok(self.solve_reduced(t, Some(&s.warm())).unwrap_or(s)),
+            Ok(s) => Ok(s),
+            Err(e) => match &nearest {
+                Some((tw, w)) => self.continue_from(*tw, w, t).map_err(|_| e),
+                None if t < self.t_high => {
+                    let high = self
+                        .solve_reduced(self.t_high, None)
+                        .map_err(|_| e.clone())?;
+                    self.continue_from(self.t_high, &high.warm(), t)
+                        .map_err(|_| e)
+                }
+                None => Err(e),
+            },
+        }
+    }
+
+    /// The start for a solve at `t` interpolated (or extrapolated by at most twice their
+    /// distance) along the line through the two states solved nearest to `t`:
+    /// `y = y₁ + (t − t₁)/(t₂ − t₁)·(y₂ − y₁)`, off by O((t − t₁)(t − t₂)) where the
+    /// nearest alone is off by O(t − t₁), which saves Newton steps along every search
+    /// and path. At h = 0 only, where the paramagnet is the one symmetric state: in a
+    /// field at low temperature the symmetric solutions include mixtures of ordered
+    /// domains, equal in F to rounding, and which one Newton lands on would depend on
+    /// the start (those follow the nearest state, as they always have). `None` with
+    /// fewer than two states, too far, or outside the feasible region.
+    fn predicted(&self, history: &[(f64, Solved)], t: f64) -> Option<Warm> {
+        if self.basis != Basis::Walsh {
+            return None;
+        }
+        let mut by_distance: Vec<&(f64, Solved)> = history.iter().collect();
+        by_distance.sort_by(|a, b| (a.0 - t).abs().total_cmp(&(b.0 - t).abs()));
+        let [(t1, s1), (t2, s2), ..] = by_distance.as_slice() else {
+            return None;
+        };
+        let alpha = (t - t1) / (t2 - t1);
+        if alpha.is_nan() || alpha.abs() > 2.0 || s1.x.len() != s2.x.len() {
+            return None;
+        }
+        let (w1, w2) = (s1.warm(), s2.warm());
+        let offset: Vec<f64> = (0..w1.offset.len())
+            .map(|k| {
+                let dy = (w2.reference[k] - w1.reference[k]) + (w2.offset[k] - w1.offset[k]);
+                w1.offset[k] + alpha * dy
+            })
+            .collect();
+        let lv = match &self.reduced {
+            Some((lv, _)) => lv,
+            None => self.level,
+        };
+        let y: Vec<f64> = w1
+            .reference
+            .iter()
+            .zip(&offset)
+            .map(|(r, d)| r + d)
+            .collect();
+        let feasible = Functional::with_basis(lv, t, self.field, Basis::Walsh, None).feasible(&y);
+        feasible.then_some(Warm {
+            reference: w1.reference,
+            offset,
+        })
+    }
+
+    /// Keep the state solved at `t` (at most [`HISTORY`] states: the one farthest from
+    /// `t` goes first).
+    fn remember(&self, t: f64, solved: &Solved) {
+        let mut history = self.history.borrow_mut();
+        if history.iter().any(|(tk, _)| *tk == t) {
+            return;
+        }
+        if history.len() >= HISTORY {
+            if let Some(far) = (0..history.len()).max_by(|&a, &b| {
+                (history[a].0 - t)
+                    .abs()
+                    .total_cmp(&(history[b].0 - t).abs())
+            }) {
+                history.swap_remove(far);
+            }
+        }
+        history.push((t, solved.clone()));
     }
 
     /// A state `x` of functional `f` (as [`Disordered::solve`] returns them) in the
@@ -259,6 +350,20 @@ impl<'a> Disordered<'a> {
             Block::all(lv)
         };
         let opts = NewtonOptions::default();
+        // Plain Walsh functionals (h = 0) assemble their Newton Hessians in the grouped
+        // Gram form; the groups depend on the reduced level and the block alone.
+        let groups = if self.basis == Basis::Walsh {
+            self.groups
+                .get_or_init(|| {
+                    Functional::with_basis(lv, t, 0.0, Basis::Walsh, None).state_groups(&block)
+                })
+                .as_ref()
+        } else {
+            None
+        };
+        let newton = |f: &Functional, x0: Vec<f64>| {
+            minimise_with(f, x0, &block, opts, &mut DenseSolver::with_groups(groups))
+        };
         let cold = || -> Result<Solved, SolveError> {
             let f = Functional::with_basis(lv, t, self.field, self.basis.clone(), None);
             let m = if self.field == 0.0 {
@@ -267,7 +372,7 @@ impl<'a> Disordered<'a> {
                 (self.field / t).tanh()
             };
             let start = f.product_state_sites(&vec![0.9 * m; lv.sites_per_cell]);
-            let sol = minimise(&f, start, &block, opts)?;
+            let sol = newton(&f, start)?;
             Ok(Solved {
                 reference: None,
                 x: sol.x,
@@ -288,8 +393,9 @@ impl<'a> Disordered<'a> {
                 .zip(&w.offset)
                 .map(|(r, d)| r + d)
                 .collect();
-            if plain.feasible(&x) && plain.cancellation(&x) < PLAIN_CANCELLATION {
-                if let Ok(sol) = minimise(&plain, x, &block, opts) {
+            // (The cancellation is infinite where x is infeasible.)
+            if plain.cancellation(&x) < PLAIN_CANCELLATION {
+                if let Ok(sol) = newton(&plain, x) {
                     if plain.cancellation(&sol.x) < PLAIN_CANCELLATION {
                         return Ok(Solved {
                             reference: None,
@@ -309,7 +415,7 @@ impl<'a> Disordered<'a> {
         if !f.feasible(&w.offset) {
             return cold();
         }
-        match minimise(&f, w.offset.clone(), &block, opts) {
+        match newton(&f, w.offset.clone()) {
             Ok(sol) => Ok(Solved {
                 reference: Some(w.reference.clone()),
                 x: sol.x,
@@ -341,8 +447,9 @@ impl<'a> Disordered<'a> {
             field,
             basis: disordered_basis(self.level.sites_per_cell, field),
             reduced: self.reduced.clone(),
-            warm: RefCell::new(None),
+            history: RefCell::new(Vec::new()),
             t_high: self.t_high - self.field.abs() + field.abs(),
+            groups: OnceCell::new(),
         }
     }
 }

@@ -13,6 +13,7 @@ use nalgebra::DMatrix;
 
 use crate::error::SolveError;
 use crate::functional::{Block, Evaluation, Functional};
+use crate::gram::StateGroups;
 
 /// Stopping rules.
 #[derive(Debug, Clone, Copy)]
@@ -83,17 +84,33 @@ pub trait HessianSolver {
 /// The dense nalgebra Hessian of [`Functional::hessian_block`] with Cholesky solves; the
 /// unshifted factor is kept for chord steps.
 #[derive(Debug, Default)]
-pub struct DenseSolver {
+pub struct DenseSolver<'g> {
     h: Option<DMatrix<f64>>,
     factor: Option<crate::linalg::SpdFactor>,
+    /// The block's cluster states grouped for the grouped Gram form, when at hand.
+    groups: Option<&'g StateGroups>,
 }
 
-impl HessianSolver for DenseSolver {
+impl<'g> DenseSolver<'g> {
+    /// A solver that assembles plain Walsh Hessians in the grouped Gram form
+    /// ([`Functional::hessian_block_grouped`]) with `groups`, built on the block it will
+    /// be asked for.
+    pub fn with_groups(groups: Option<&'g StateGroups>) -> DenseSolver<'g> {
+        DenseSolver {
+            groups,
+            ..DenseSolver::default()
+        }
+    }
+}
+
+impl HessianSolver for DenseSolver<'_> {
     fn assemble(&mut self, f: &Functional, x: &[f64], block: &Block) -> bool {
         self.h = if f.is_precise() {
             f.hessian_block_precise(x, &block.vars, &block.pos)
         } else {
-            f.hessian_block(x, &block.vars, &block.pos)
+            self.groups
+                .and_then(|g| f.hessian_block_grouped(x, block, g))
+                .or_else(|| f.hessian_block(x, &block.vars, &block.pos))
         };
         self.factor = None;
         self.h.is_some()

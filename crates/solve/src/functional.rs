@@ -34,6 +34,7 @@ use nalgebra::{DMatrix, DVector};
 use rungs_lattice::{BondTerm, Level};
 
 use crate::dd::Dd;
+use crate::gram::StateGroups;
 use crate::subset::{
     mobius_subset, mobius_superset, parity_sign, walsh, zeta_subset, zeta_superset,
 };
@@ -191,6 +192,9 @@ pub struct RegionKernel<'f> {
     pub kernel_lo: Option<Vec<f64>>,
     /// How to read it.
     pub kind: KernelKind,
+    /// `1/p(σ)` per state, kept for the grouped Gram form ([`crate::gram`]) where the
+    /// kernel is a plain Walsh one (empty otherwise).
+    pub inv_p: Vec<f64>,
 }
 
 impl RegionKernel<'_> {
@@ -642,6 +646,7 @@ impl<'a> Functional<'a> {
         for (ri, r) in self.setup.regions.iter().enumerate() {
             let size = 1usize << r.n;
             let mut kernel_lo = None;
+            let mut inv_p = Vec::new();
             let kernel = if precise {
                 let p = self.probabilities_dd(r, ri, x)?;
                 let mut k: Vec<Dd> = p.iter().map(|q| q.recip()).collect();
@@ -664,6 +669,9 @@ impl<'a> Functional<'a> {
                     return None;
                 }
                 let mut k: Vec<f64> = p.iter().map(|q| 1.0 / q).collect();
+                if self.setup.basis == Basis::Walsh {
+                    inv_p.clone_from(&k);
+                }
                 match self.setup.basis {
                     Basis::Walsh => walsh(&mut k),
                     Basis::Flip { .. } => zeta_subset(&mut k),
@@ -686,6 +694,7 @@ impl<'a> Functional<'a> {
                 kernel,
                 kernel_lo,
                 kind,
+                inv_p,
             });
         }
         Some(out)
@@ -905,6 +914,68 @@ impl<'a> Functional<'a> {
                 h[(j, i)] = v;
             }
         }
+        Some(h)
+    }
+
+    /// The cluster states of every region grouped for [`Functional::hessian_block_grouped`]
+    /// on `block` (Walsh basis only; `None` in the flip basis or where grouping does not
+    /// pay, see [`StateGroups::new`]). Depends on the level and the block alone: build
+    /// once, use at every temperature.
+    pub fn state_groups(&self, block: &Block) -> Option<StateGroups> {
+        if self.setup.basis != Basis::Walsh {
+            return None;
+        }
+        let regions = self.setup.regions.iter().map(|r| {
+            let masks = (1..1usize << r.n)
+                .filter_map(|c| {
+                    let row = block.pos[r.vars[c] as usize];
+                    (row != usize::MAX).then_some((c, row, 1))
+                })
+                .collect();
+            (r.n, masks)
+        });
+        StateGroups::new(block.vars.len(), &vec![1.0; block.vars.len()], regions)
+    }
+
+    /// [`Functional::hessian_block`] on the block `groups` were built for, in the
+    /// grouped Gram form `H = Σ_γ T a_γ 4^-n Σ_g (Σ_{σ∈g} 1/p_γ(σ)) u_g u_gᵀ` (see
+    /// [`crate::gram`]): the same matrix to rounding, in plain doubles. `None` where `x`
+    /// is infeasible, or where the functional is not a plain Walsh one (use
+    /// [`Functional::hessian_block`] or [`Functional::hessian_block_precise`] there).
+    pub fn hessian_block_grouped(
+        &self,
+        x: &[f64],
+        block: &Block,
+        groups: &StateGroups,
+    ) -> Option<DMatrix<f64>> {
+        let m = block.vars.len();
+        if self.setup.precise
+            || self.setup.basis != Basis::Walsh
+            || groups.order() != m
+            || groups.regions() != self.setup.regions.len()
+        {
+            return None;
+        }
+        let mut h = DMatrix::<f64>::zeros(m, m);
+        let mut p = Vec::new();
+        for (ri, r) in self.setup.regions.iter().enumerate() {
+            let size = 1usize << r.n;
+            p.resize(size, 0.0);
+            if !self.probabilities(r, ri, x, &mut p) {
+                return None;
+            }
+            p.iter_mut().for_each(|q| *q = 1.0 / *q);
+            let scale = self.t * r.coefficient / (size as f64 * size as f64);
+            groups.add_region(ri, &p, scale, h.as_mut_slice());
+        }
+        for &(a, b, c) in self.quadratic_terms() {
+            let (pa, pb) = (block.pos[a], block.pos[b]);
+            if pa != usize::MAX && pb != usize::MAX {
+                let (lo, hi) = (pa.min(pb), pa.max(pb));
+                h[(lo, hi)] += if lo == hi { 2.0 * c } else { c };
+            }
+        }
+        h.fill_lower_triangle_with_upper_triangle();
         Some(h)
     }
 

@@ -24,6 +24,7 @@ pub mod equilibrium;
 pub mod error;
 pub mod extrapolate;
 pub mod functional;
+pub mod gram;
 pub mod krylov;
 pub mod levels;
 pub mod linalg;

@@ -170,6 +170,30 @@ pub fn solve_spd(m: &DMatrix<f64>, rhs: &[f64]) -> Option<Vec<f64>> {
     Some(SpdFactor::new(m)?.solve(rhs))
 }
 
+/// The inverse of a real symmetric positive definite matrix, `M⁻¹ = L⁻ᵀ L⁻¹` from its
+/// Cholesky factor; `None` when M is not positive definite.
+pub fn spd_inverse(m: &DMatrix<f64>) -> Option<DMatrix<f64>> {
+    let n = m.nrows();
+    let l = cholesky(to_faer(m))?;
+    let mut out = Mat::<f64>::zeros(n, n);
+    let mut mem =
+        MemBuffer::new(faer::linalg::cholesky::llt::inverse::inverse_scratch::<f64>(n, par(n)));
+    faer::linalg::cholesky::llt::inverse::inverse(
+        out.as_mut(),
+        l.as_ref(),
+        par(n),
+        MemStack::new(&mut mem),
+    );
+    // Only the lower triangle is written.
+    Some(DMatrix::from_fn(n, n, |i, j| {
+        if i >= j {
+            out[(i, j)]
+        } else {
+            out[(j, i)]
+        }
+    }))
+}
+
 /// The Schur complement `C − Bᵀ A⁻¹ B` of a real symmetric positive definite `A`:
 /// with `A = L Lᵀ` and `Y = L⁻¹ B`, it is `C − Yᵀ Y`. `None` when A is not positive
 /// definite.

@@ -19,7 +19,7 @@
 //! the ordering wavevector and the eigenvector the ordering pattern. Site-level check:
 //! `λ(q) = T/(1 − m²) − J(q)` (mean field).
 
-use std::sync::{Arc, Mutex};
+use std::sync::{Arc, Mutex, OnceLock};
 
 use nalgebra::{Complex, DMatrix, DVector};
 use rungs_lattice::symmetry::SiteMap;
@@ -27,6 +27,7 @@ use rungs_lattice::{Cell, Cluster, Lattice, Level};
 
 use crate::dd::Dd;
 use crate::functional::{upper_pairs, Block, Functional, KernelKind, RegionKernel};
+use crate::gram::StateGroups;
 use crate::linalg;
 
 /// A wavevector in units of the reciprocal primitive vectors (unused components 0).
@@ -202,6 +203,42 @@ impl<'f> QHessian<'f> {
         }
         mirror_upper(&mut h);
         h
+    }
+
+    /// The Rayleigh form `u† H(q) u`. Where every kernel is a plain Walsh one it is
+    /// summed without the matrix: per region `T a 4^-n Σ_σ |v(σ)|² / p(σ)` with
+    /// `v = W a`, `a_c = e^{2πi q·t_c} D_c^{-1/2} u_{row(c)}` (the Gram form of
+    /// [`crate::gram`]; one Walsh–Hadamard transform of 2^n numbers per region instead
+    /// of a visit of every pair of masks), plus the factorised bonds'
+    /// `2 Re(ū_a h_ab u_b)`.
+    pub fn quadratic_form(&self, q: &Wavevector, u: &DVector<Complex<f64>>) -> f64 {
+        if self
+            .kernels
+            .iter()
+            .any(|k| k.kind != KernelKind::Xor || k.kernel_lo.is_some() || k.inv_p.is_empty())
+        {
+            return (u.adjoint() * self.matrix(q) * u)[(0, 0)].re;
+        }
+        let mut total = 0.0;
+        let mut a = Vec::new();
+        for (k, offs) in self.kernels.iter().zip(&self.offsets) {
+            a.clear();
+            a.resize(1usize << k.n, Complex::new(0.0, 0.0));
+            for (mask, row, t) in self.block_masks(k, offs) {
+                a[mask] = phase(q, t) * (self.row_scale[row] * u[row]);
+            }
+            crate::subset::walsh(&mut a);
+            let sum: f64 = a.iter().zip(&k.inv_p).map(|(v, w)| v.norm_sqr() * w).sum();
+            total += k.scale * sum;
+        }
+        for &(a, b, c, cell) in &self.quad {
+            let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
+            if pa != usize::MAX && pb != usize::MAX {
+                let h = phase(q, &cell) * (c * self.row_scale[pa] * self.row_scale[pb]);
+                total += 2.0 * (u[pa].conj() * h * u[pb]).re;
+            }
+        }
+        total
     }
 
     /// `H(q)` for a wavevector whose phases are all real (see [`is_real`]); summed in
@@ -435,6 +472,58 @@ fn kernel_block(
     DMatrix::from_vec(rows, cols, out)
 }
 
+/// The scaled Schur complement of a region's private block, unshifted, from the
+/// inverse of its kernel: in correlations a region's kernel over all its masks is
+/// `K = T a 4^-n W diag(1/p) W` (W the Walsh matrix, `W² = 2^n I`), whose inverse is the
+/// moment matrix `K⁻¹[c, d] = ξ_{c⊕d} / (T a)` (`ξ_c = Σ_σ p(σ) χ_c(σ)`, `ξ_0 = 1`).
+/// Eliminating the empty mask (not a variable) leaves on the non-empty ones the
+/// covariance `K_NN⁻¹[c, d] = (ξ_{c⊕d} − ξ_c ξ_d / ξ_0) / (T a)`, and the Schur complement
+/// of the private masks P within the block's masks O = P ∪ E is
+/// `K_EE − K_EP K_PP⁻¹ K_PE = ((K_OO⁻¹)_EE)⁻¹ = T a · Cov_EE⁻¹`: one inversion of
+/// order |E| (32 for the cube, whose 96 private masks the direct elimination factorises).
+/// The identity needs `K_OO⁻¹ = (K_NN⁻¹)_OO`: O is every non-empty mask (a field), or
+/// the odd masks at a state with no odd correlation (h = 0, where K has no odd–even
+/// entries). `K_PP` is definite with the sign of a (all p > 0): `Some(None)` for a
+/// negative region with private masks (indefinite at every q). `None` where the identity
+/// does not apply (the caller eliminates directly).
+fn moment_schur(
+    k: &RegionKernel<'_>,
+    rs: &[f64],
+    e: &[(usize, usize)],
+    p: &[(usize, usize)],
+) -> Option<Option<DMatrix<f64>>> {
+    if k.kind != KernelKind::Xor || k.kernel_lo.is_some() || k.inv_p.is_empty() {
+        return None;
+    }
+    let size = 1usize << k.n;
+    let block_masks = e.len() + p.len();
+    let mut xi: Vec<f64> = k.inv_p.iter().map(|w| 1.0 / w).collect();
+    crate::subset::walsh(&mut xi);
+    let all = block_masks == size - 1;
+    let odd_only = block_masks == size / 2
+        && e.iter().chain(p).all(|&(c, _)| c.count_ones() % 2 == 1)
+        && (1..size)
+            .filter(|c| c.count_ones() % 2 == 1)
+            .all(|c| xi[c].abs() <= 1e-13 * xi[0]);
+    if !(all || odd_only) {
+        return None;
+    }
+    // T a, from the kernel's scale T a 4^-n.
+    let ta = k.scale * (size * size) as f64;
+    if ta < 0.0 {
+        return Some(None);
+    }
+    let n = e.len();
+    let cov = DMatrix::from_fn(n, n, |i, j| {
+        let (c, d) = (e[i].0, e[j].0);
+        xi[c ^ d] - xi[c] * xi[d] / xi[0]
+    });
+    let inverse = linalg::spd_inverse(&cov)?;
+    Some(Some(DMatrix::from_fn(n, n, |i, j| {
+        ta * inverse[(i, j)] * rs[e[i].1] * rs[e[j].1]
+    })))
+}
+
 /// One end of a bond on a symmetric subspace: (column, coefficient).
 type ProjectedEnd = (usize, Complex<f64>);
 
@@ -524,6 +613,16 @@ impl QHessian<'_> {
                 local.push((masks, None));
                 continue;
             }
+            if s == 0.0 {
+                match moment_schur(k, rs, &e, &p) {
+                    Some(Some(g)) => {
+                        local.push((masks, Some(g)));
+                        continue;
+                    }
+                    Some(None) => return Reduced::Indefinite,
+                    None => {}
+                }
+            }
             let mut kpp = kernel_block(k, rs, &p, &p);
             for i in 0..p.len() {
                 kpp[(i, i)] -= s;
@@ -595,6 +694,9 @@ pub struct Projection {
     /// Per row of the block: (column, coefficient), column `usize::MAX` when dropped.
     rows: Vec<(usize, Complex<f64>)>,
     columns: usize,
+    /// The cluster states grouped for the projected matrix in the grouped Gram form at
+    /// a real wavevector (built on first use; `None` where grouping does not pay).
+    groups: OnceLock<Option<StateGroups>>,
 }
 
 impl Projection {
@@ -644,7 +746,11 @@ impl Projection {
             }
             columns += 1;
         }
-        Projection { rows, columns }
+        Projection {
+            rows,
+            columns,
+            groups: OnceLock::new(),
+        }
     }
 
     /// Number of symmetric modes.
@@ -911,6 +1017,9 @@ impl QHessian<'_> {
     /// [`is_real`]), where the symmetric modes' coefficients are real too: a real
     /// symmetric matrix, summed in real arithmetic.
     fn projected_real_matrix(&self, q: &Wavevector, proj: &Projection) -> DMatrix<f64> {
+        if let Some(h) = self.projected_real_grouped(q, proj) {
+            return h;
+        }
         let m = proj.columns;
         let mut h = DMatrix::<f64>::zeros(m, m);
         let mut rows = Vec::new();
@@ -936,6 +1045,68 @@ impl QHessian<'_> {
         }
         h.fill_lower_triangle_with_upper_triangle();
         h
+    }
+
+    /// [`Self::projected_real_matrix`] in the grouped Gram form (see [`crate::gram`]):
+    /// `B†H(q)B = Σ_γ T a_γ 4^-n Σ_g (Σ_{σ∈g} 1/p_γ(σ)) u_g u_gᵀ` with
+    /// `u_g = Σ_c ±b_c χ_c(σ)` over the masks on the subspace (the sign the phase's at the
+    /// real q times the mode coefficient's), each column scaled by the `D^{-1/2}` of its
+    /// first row (the rows of one symmetric mode are images of one another under the
+    /// point group, at a symmetric state, so they share `D` to rounding). `None` where
+    /// the kernels are not plain Walsh ones (double-double, flip probabilities) or
+    /// grouping does not pay: the caller then visits the pairs of masks.
+    fn projected_real_grouped(&self, q: &Wavevector, proj: &Projection) -> Option<DMatrix<f64>> {
+        if self
+            .kernels
+            .iter()
+            .any(|k| k.kind != KernelKind::Xor || k.kernel_lo.is_some() || k.inv_p.is_empty())
+        {
+            return None;
+        }
+        let m = proj.columns;
+        // Each column's coefficient magnitude and row scale, from its first row.
+        let mut norm = vec![f64::NAN; m];
+        let mut scale = vec![f64::NAN; m];
+        for (row, &(col, a)) in proj.rows.iter().enumerate() {
+            if col != usize::MAX && norm[col].is_nan() {
+                norm[col] = a.re.abs();
+                scale[col] = self.row_scale[row];
+            }
+        }
+        let groups = proj
+            .groups
+            .get_or_init(|| {
+                let regions = self.kernels.iter().zip(&self.offsets).map(|(k, offs)| {
+                    let masks = self
+                        .block_masks(k, offs)
+                        .filter_map(|(mask, row, t)| {
+                            let (col, a) = proj.rows[row];
+                            let sign = phase(q, t).re.signum() * a.re.signum();
+                            (col != usize::MAX).then_some((mask, col, sign as i32))
+                        })
+                        .collect();
+                    (k.n, masks)
+                });
+                StateGroups::new(m, &norm, regions)
+            })
+            .as_ref()?;
+        let mut h = DMatrix::<f64>::zeros(m, m);
+        for (ri, k) in self.kernels.iter().enumerate() {
+            groups.add_region(ri, &k.inv_p, k.scale, h.as_mut_slice());
+        }
+        for j in 0..m {
+            for i in 0..=j {
+                h[(i, j)] *= scale[i] * scale[j];
+            }
+        }
+        for ((ca, aa), (cb, ab), (pa, pb), c, cell) in self.projected_quad(proj) {
+            let ph = phase(q, &cell).re.signum() * self.row_scale[pa] * self.row_scale[pb];
+            let (lo, hi) = (ca.min(cb), ca.max(cb));
+            let v = aa.re * ab.re * ph * c;
+            h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
+        }
+        h.fill_lower_triangle_with_upper_triangle();
+        Some(h)
     }
 
     /// The smallest eigenvalue on the symmetric subspace and its eigenvector written on

@@ -305,6 +305,10 @@ impl Candidate {
     }
 }
 
+/// One candidate's value at a probed temperature: (candidate, value, watched on its
+/// symmetric subspace).
+type Probed = (usize, f64, bool);
+
 /// The stability probe of the dense path: the smallest eigenvalue of `H(q)` over the
 /// candidate wavevectors at the disordered state.
 struct QProbe<'a, 'l> {
@@ -322,6 +326,10 @@ struct QProbe<'a, 'l> {
     /// While refining a root, the one candidate that went soft at the bracket's lower
     /// end (`None`: every candidate).
     only: std::cell::Cell<Option<usize>>,
+    /// Every candidate's value at each temperature the step-down probed: (T, [(candidate,
+    /// value, watched on its subspace)]), so that the root's search need not probe the
+    /// bracket's upper end again for the one candidate it follows.
+    probed: RefCell<Vec<(f64, Vec<Probed>)>>,
     observe: &'l (dyn Fn(&str) + Sync),
 }
 
@@ -340,6 +348,7 @@ impl QProbe<'_, '_> {
         // block is checked once just above the root found.
         let full_check = *self.phase.borrow() == STEPPING_DOWN;
         let only = self.only.get();
+        let mut seen = Vec::new();
         for (i, c) in self.candidates.borrow_mut().iter_mut().enumerate() {
             if only.is_some_and(|o| o != i) {
                 continue;
@@ -352,13 +361,32 @@ impl QProbe<'_, '_> {
                 c.projection = None;
                 v = c.value(&qh);
             }
+            seen.push((i, v, c.projection.is_some()));
             // Earlier candidates (points of high symmetry) win ties.
             if v < best - TIE.max(1e-15 * v.abs()) {
                 best = v;
                 arg = i;
             }
         }
+        if full_check {
+            let mut probed = self.probed.borrow_mut();
+            probed.retain(|(tp, _)| *tp != t);
+            probed.push((t, seen));
+        }
         Ok((best, arg, noise))
+    }
+
+    /// The value of candidate `i` at a temperature the step-down probed, if it was
+    /// watched there as it is now (on its symmetric subspace or on the full block).
+    fn probed_value(&self, t: f64, i: usize) -> Option<f64> {
+        let whole = self.candidates.borrow().get(i)?.projection.is_none();
+        self.probed
+            .borrow()
+            .iter()
+            .filter(|(tp, _)| *tp == t)
+            .flat_map(|(_, seen)| seen.iter())
+            .find(|&&(j, _, projected)| j == i && projected != whole)
+            .map(|&(_, v, _)| v)
     }
 }
 
@@ -487,6 +515,7 @@ pub fn critical_temperature_observed(
         name: level.name.clone(),
         last: RefCell::new((f64::NAN, 0.0, 0)),
         only: std::cell::Cell::new(None),
+        probed: RefCell::new(Vec::new()),
         phase: RefCell::new(STEPPING_DOWN),
         observe,
     };
@@ -533,11 +562,12 @@ pub fn critical_temperature_observed(
         // bracket is refined again on every candidate.
         let soft = probe.last.borrow().2;
         probe.only.set(Some(soft));
+        let hi_value = probe.probed_value(hi, soft).unwrap_or(f64::NAN);
         let mut tc = refine_known(
             &mut probe,
             lo,
             hi,
-            (values.0, f64::NAN),
+            (values.0, hi_value),
             options.relative_tolerance,
         )?;
         probe.only.set(None);
@@ -896,8 +926,7 @@ fn finish(
         let (f, x) = follower.solve_for_stability(t)?;
         let qh = QHessian::scaled(&f, lattice, &x, follower.sector(), false)
             .ok_or_else(|| infeasible(&level.name, t))?;
-        let m = qh.matrix(&q);
-        Ok((u.adjoint() * m * u)[(0, 0)].re)
+        Ok(qh.quadratic_form(&q, u))
     };
     // Central difference: truncation error (δ/T)²·O(1) ~ 10⁻⁸ relative, rounding of the
     // scaled eigenvalue (~10⁻¹⁵) over 2δ·λ' at most ~10⁻⁶ relative for the largest
@@ -912,9 +941,12 @@ fn finish(
     let mut ordering = ordering;
     // |λ(p) − λ*| < tol, by two Cholesky factorisations (cheaper than an eigensolve).
     // The upper test first: it fails for almost every p, and one factorisation decides.
+    // At q* itself λ = λ* (the checks before ensured that no less symmetric mode there is
+    // lower), and no factorisation is needed.
     let level_with = |p: &Wavevector| {
-        !qh.is_positive_definite_above(p, mode.value + 1e-7)
-            && qh.is_positive_definite_above(p, mode.value - 1e-7)
+        same_q(p, &q, d)
+            || !qh.is_positive_definite_above(p, mode.value + 1e-7)
+                && qh.is_positive_definite_above(p, mode.value - 1e-7)
     };
     let zone_flat = d > 0 && zone_grid(d, 4).iter().all(level_with);
     if zone_flat {
