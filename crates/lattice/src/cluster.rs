@@ -26,6 +26,13 @@ impl Cluster {
         Cluster { sites: v }
     }
 
+    /// The sorted `(cell, basis)` pairs: a hash key equal for equal clusters, against
+    /// which [`crate::symmetry::SiteMap::image_into`] looks images up without building
+    /// a cluster.
+    pub fn key(&self) -> &[(Cell, usize)] {
+        &self.sites
+    }
+
     /// Number of sites.
     pub fn len(&self) -> usize {
         self.sites.len()

@@ -18,7 +18,7 @@
 //! with `m(γ, δ)` the number of translates of δ that contain a fixed translate of γ.
 //! Sum rule: `Σ_γ a_γ |γ| = sites per cell`.
 
-use std::collections::{BTreeSet, HashMap};
+use std::collections::BTreeSet;
 
 use crate::cluster::Cluster;
 use crate::error::LatticeError;
@@ -268,7 +268,8 @@ impl Level {
         }
         let (orbits, coeff): (Vec<Cluster>, Vec<i64>) = regions.into_iter().unzip();
         // Correlation variables: every non-empty subset of a maximal cluster.
-        let mut var_set: BTreeSet<Cluster> = BTreeSet::new();
+        // (Listed in the order sorted below: the set only removes duplicates.)
+        let mut var_set: foldhash::HashSet<Cluster> = foldhash::HashSet::default();
         for m in &maximal {
             let n = m.len();
             for mask in 1u64..(1u64 << n) {
@@ -277,7 +278,7 @@ impl Level {
         }
         let mut variables: Vec<Cluster> = var_set.into_iter().collect();
         variables.sort_by(|a, b| a.len().cmp(&b.len()).then(a.cmp(b)));
-        let index: HashMap<&Cluster, usize> =
+        let index: foldhash::HashMap<&Cluster, usize> =
             variables.iter().enumerate().map(|(i, c)| (c, i)).collect();
         let regions = orbits
             .iter()

@@ -9,7 +9,7 @@
 //! The free energy is invariant under them, so a state that shares the symmetry
 //! (the paramagnet at h = 0, uniform order) can be solved on orbit variables only.
 
-use std::collections::{BTreeSet, HashMap};
+use std::collections::BTreeSet;
 
 use crate::cluster::Cluster;
 use crate::level::Level;
@@ -40,6 +40,24 @@ impl SiteMap {
     /// The image of a cluster, canonicalised.
     pub fn image(&self, cluster: &Cluster) -> Cluster {
         Cluster::canonical(cluster.sites().map(|(a, c)| self.apply(a, c)))
+    }
+
+    /// The image of a cluster written into `buf` as the canonical form's
+    /// [`Cluster::key`], and the cell `t` its first site lies in before the translation
+    /// to cell 0 (`op(cluster) = canonical + t`). No allocation once `buf` has grown: the
+    /// symmetry analysis of a level maps every orbit's variable under every operation.
+    pub fn image_into(&self, cluster: &Cluster, buf: &mut Vec<(Cell, usize)>) -> Cell {
+        buf.clear();
+        buf.extend(cluster.sites().map(|(a, c)| {
+            let (b, d) = self.apply(a, c);
+            (d, b)
+        }));
+        buf.sort_unstable();
+        let t = buf.first().map_or([0; 3], |s| s.0);
+        for s in buf.iter_mut() {
+            s.0 = [s.0[0] - t[0], s.0[1] - t[1], s.0[2] - t[2]];
+        }
+        t
     }
 }
 
@@ -87,9 +105,169 @@ fn unimodular(d: usize) -> Vec<[[i32; 3]; 3]> {
     out
 }
 
+/// Every bond's cell offset, both ways, with its coupling's bits: sorted, no repeats.
+fn bond_vectors(lattice: &Lattice) -> Vec<(Cell, u64)> {
+    let mut vectors: Vec<(Cell, u64)> = lattice
+        .bonds()
+        .iter()
+        .flat_map(|b| {
+            let j = b.j.to_bits();
+            [(b.cell, j), ([-b.cell[0], -b.cell[1], -b.cell[2]], j)]
+        })
+        .collect();
+    vectors.sort_unstable();
+    vectors.dedup();
+    vectors
+}
+
+/// Whether `rot` maps every one of `vectors` (see [`bond_vectors`]) onto one of them.
+fn keeps_bond_vectors(rot: &[[i32; 3]; 3], vectors: &[(Cell, u64)]) -> bool {
+    vectors.iter().all(|&(c, j)| {
+        let rc = [0, 1, 2].map(|i| rot[i][0] * c[0] + rot[i][1] * c[1] + rot[i][2] * c[2]);
+        vectors.binary_search(&(rc, j)).is_ok()
+    })
+}
+
+/// The candidate rotations (entries in {−1, 0, 1}, |det| = 1, identity on unused
+/// dimensions; see [`candidate_rotations`]) that map `d` linearly independent bond
+/// vectors of `vectors` (sorted (cell offset, coupling) pairs) onto bond vectors of the
+/// same couplings: `R = T B⁻¹ = T adj(B) / det B` for the chosen vectors B and each choice
+/// of images T. Every candidate that keeps the bonds is among them (it maps B to some T);
+/// the caller still checks all bonds. `None` where the bond vectors do not span the
+/// space or the trials would outnumber the candidates.
+fn rotations_from_bonds(d: usize, vectors: &[(Cell, u64)]) -> Option<Vec<[[i32; 3]; 3]>> {
+    if d == 0 {
+        return None;
+    }
+    // d independent bond vectors, greedily (the columns of B, identity beyond d).
+    let mut basis: Vec<(Cell, u64)> = Vec::new();
+    for &v in vectors {
+        let mut m = [[0i32; 3]; 3];
+        for (k, row) in m.iter_mut().enumerate() {
+            *row = [0, 0, 0];
+            row[k] = 1;
+        }
+        for (col, &(c, _)) in basis.iter().chain([&v]).enumerate() {
+            for (row, r) in m.iter_mut().enumerate().take(d) {
+                r[col] = c[row];
+            }
+        }
+        // The chosen columns plus unit vectors fill the rest: independent when the
+        // leading minor of the chosen columns is non-zero in some completion; test the
+        // rank by the determinant with the remaining unit columns.
+        if independent(&m, basis.len() + 1, d) {
+            basis.push(v);
+            if basis.len() == d {
+                break;
+            }
+        }
+    }
+    if basis.len() < d {
+        return None;
+    }
+    let trials = vectors.len().checked_pow(d as u32)?;
+    if trials >= candidate_rotations(d).len() {
+        return None;
+    }
+    let mut b = [[0i32; 3]; 3];
+    for (k, row) in b.iter_mut().enumerate().skip(d) {
+        row[k] = 1;
+    }
+    for (col, (c, _)) in basis.iter().enumerate() {
+        for (row, r) in b.iter_mut().enumerate().take(d) {
+            r[col] = c[row];
+        }
+    }
+    let det = det3(&b);
+    let adj = adjugate3(&b);
+    let mut out = Vec::new();
+    let mut choice = vec![0usize; d];
+    'trials: loop {
+        // T: the images of B's columns, each a bond vector of the same coupling.
+        let mut t = [[0i32; 3]; 3];
+        for (k, row) in t.iter_mut().enumerate().skip(d) {
+            row[k] = 1;
+        }
+        let mut ok = true;
+        for (col, &ci) in choice.iter().enumerate() {
+            let (c, j) = vectors[ci];
+            ok &= j == basis[col].1;
+            for (row, r) in t.iter_mut().enumerate().take(d) {
+                r[col] = c[row];
+            }
+        }
+        if ok {
+            let mut r = [[0i32; 3]; 3];
+            let mut integral = true;
+            for (i, row) in r.iter_mut().enumerate() {
+                for (k, e) in row.iter_mut().enumerate() {
+                    let num: i32 = (0..3).map(|m| t[i][m] * adj[m][k]).sum();
+                    integral &= num % det == 0;
+                    *e = num / det;
+                }
+            }
+            let unit = r.iter().flatten().all(|e| (-1..=1).contains(e));
+            if integral && unit && det3(&r).abs() == 1 {
+                out.push(r);
+            }
+        }
+        // The next choice (odometer).
+        for slot in choice.iter_mut() {
+            *slot += 1;
+            if *slot < vectors.len() {
+                continue 'trials;
+            }
+            *slot = 0;
+        }
+        break;
+    }
+    Some(out)
+}
+
+/// Whether the first `k` columns of `m` (d × d block) are linearly independent: some
+/// k × k minor on those columns is non-zero (k ≤ 3).
+fn independent(m: &[[i32; 3]; 3], k: usize, d: usize) -> bool {
+    let rows: Vec<usize> = (0..d).collect();
+    let minors = |sel: &[usize]| -> i64 {
+        match sel.len() {
+            1 => i64::from(m[sel[0]][0]),
+            2 => {
+                i64::from(m[sel[0]][0]) * i64::from(m[sel[1]][1])
+                    - i64::from(m[sel[0]][1]) * i64::from(m[sel[1]][0])
+            }
+            _ => {
+                let mut s = [[0i32; 3]; 3];
+                for (a, &r) in sel.iter().enumerate() {
+                    s[a] = m[r];
+                }
+                i64::from(det3(&s))
+            }
+        }
+    };
+    match k {
+        1 => rows.iter().any(|&r| minors(&[r]) != 0),
+        2 => rows
+            .iter()
+            .flat_map(|&a| rows.iter().map(move |&b| (a, b)))
+            .any(|(a, b)| a < b && minors(&[a, b]) != 0),
+        _ => d >= 3 && minors(&[0, 1, 2]) != 0,
+    }
+}
+
+/// The adjugate of a 3 × 3 integer matrix (`m · adj m = det m · I`).
+fn adjugate3(m: &[[i32; 3]; 3]) -> [[i32; 3]; 3] {
+    let c =
+        |r0: usize, r1: usize, c0: usize, c1: usize| m[r0][c0] * m[r1][c1] - m[r0][c1] * m[r1][c0];
+    [
+        [c(1, 2, 1, 2), -c(0, 2, 1, 2), c(0, 1, 1, 2)],
+        [-c(1, 2, 0, 2), c(0, 2, 0, 2), -c(0, 1, 0, 2)],
+        [c(1, 2, 0, 1), -c(0, 2, 0, 1), c(0, 1, 0, 1)],
+    ]
+}
+
 /// Bonds as canonical two-site clusters with their coupling (bit pattern, so equal
 /// couplings compare equal).
-fn bond_table(lattice: &Lattice) -> HashMap<Cluster, u64> {
+fn bond_table(lattice: &Lattice) -> foldhash::HashMap<Cluster, u64> {
     lattice
         .bonds()
         .iter()
@@ -144,25 +322,20 @@ pub fn point_group(lattice: &Lattice) -> Vec<SiteMap> {
     let mut found: BTreeSet<FoundOp> = BTreeSet::new();
     // One site per cell: R must map every bond vector onto a bond vector with the same
     // coupling, a test that discards almost every candidate before any search.
-    let vectors: foldhash::HashSet<(Cell, u64)> = lattice
-        .bonds()
-        .iter()
-        .flat_map(|b| {
-            let j = b.j.to_bits();
-            [(b.cell, j), ([-b.cell[0], -b.cell[1], -b.cell[2]], j)]
-        })
-        .collect();
-    let keeps_bonds = |rot: &[[i32; 3]; 3]| {
-        nb > 1
-            || vectors.iter().all(|&(c, j)| {
-                let rc = [0, 1, 2].map(|i| rot[i][0] * c[0] + rot[i][1] * c[1] + rot[i][2] * c[2]);
-                vectors.contains(&(rc, j))
-            })
+    let vectors = bond_vectors(lattice);
+    let keeps_bonds = |rot: &[[i32; 3]; 3]| nb > 1 || keeps_bond_vectors(rot, &vectors);
+    let d = lattice.dimension();
+    // One site per cell: the rotations are found from the images of d independent bond
+    // vectors (|bonds|^d trials, 216 on the simple cubic lattice) rather than by testing
+    // every candidate (3,480 in three dimensions), where that is fewer.
+    let from_bonds = (nb == 1)
+        .then(|| rotations_from_bonds(d, &vectors))
+        .flatten();
+    let rotations: Vec<[[i32; 3]; 3]> = match from_bonds {
+        Some(r) => r,
+        None => candidate_rotations(d).to_vec(),
     };
-    for &rot in candidate_rotations(lattice.dimension())
-        .iter()
-        .filter(|r| keeps_bonds(r))
-    {
+    for &rot in rotations.iter().filter(|r| keeps_bonds(r)) {
         for first in 0..nb {
             let mut map = SiteMap {
                 rot,
@@ -196,7 +369,7 @@ fn search(
     order: &[usize],
     parent: &Parents,
     neighbours: &[Vec<(usize, Cell, u64)>],
-    bonds: &HashMap<Cluster, u64>,
+    bonds: &foldhash::HashMap<Cluster, u64>,
     map: &mut SiteMap,
     found: &mut BTreeSet<FoundOp>,
 ) {
@@ -260,9 +433,19 @@ pub fn group_of(maximal: &[Cluster], ops: &[SiteMap]) -> Vec<SiteMap> {
 /// `a ∘ b` is compared in place with the operations of its rotation (without building
 /// it: |ops|² products are tested at every Tc search).
 fn is_group(ops: &[SiteMap]) -> bool {
-    let mut by_rot: foldhash::HashMap<[[i32; 3]; 3], Vec<&SiteMap>> = Default::default();
+    // Keyed by the rotation packed in one word (entries in −64..=63, as every lattice's
+    // are; a product outside that range is no member).
+    let key = |r: &[[i32; 3]; 3]| -> Option<u64> {
+        r.iter().flatten().try_fold(0u64, |acc, &e| {
+            (-64..=63).contains(&e).then(|| acc << 7 | (e + 64) as u64)
+        })
+    };
+    let mut by_rot: foldhash::HashMap<u64, Vec<&SiteMap>> = Default::default();
     for op in ops {
-        by_rot.entry(op.rot).or_default().push(op);
+        let Some(k) = key(&op.rot) else {
+            return false;
+        };
+        by_rot.entry(k).or_default().push(op);
     }
     let is_product = |c: &SiteMap, a: &SiteMap, b: &SiteMap| {
         b.perm.iter().zip(&b.shift).enumerate().all(|(i, (&p, s))| {
@@ -276,9 +459,8 @@ fn is_group(ops: &[SiteMap]) -> bool {
     };
     ops.iter().all(|a| {
         ops.iter().all(|b| {
-            let rot = compose_rot(&a.rot, &b.rot);
-            by_rot
-                .get(&rot)
+            key(&compose_rot(&a.rot, &b.rot))
+                .and_then(|k| by_rot.get(&k))
                 .is_some_and(|cs| cs.iter().any(|c| is_product(c, a, b)))
         })
     })
@@ -300,23 +482,25 @@ fn compose_rot(a: &[[i32; 3]; 3], b: &[[i32; 3]; 3]) -> [[i32; 3]; 3] {
 /// once from its first variable (orbits × |ops| images); otherwise the orbits of the
 /// group `ops` generates are found by union–find over every variable and operation.
 pub fn variable_orbits(level: &Level, ops: &[SiteMap]) -> Vec<usize> {
-    let index: foldhash::HashMap<&Cluster, usize> = level
+    let index: foldhash::HashMap<&[(Cell, usize)], usize> = level
         .variables
         .iter()
         .enumerate()
-        .map(|(i, c)| (c, i))
+        .map(|(i, c)| (c.key(), i))
         .collect();
     let n = level.variables.len();
     if is_group(ops) {
         let mut out = vec![usize::MAX; n];
         let mut next = 0;
+        let mut buf = Vec::new();
         for (v, c) in level.variables.iter().enumerate() {
             if out[v] != usize::MAX {
                 continue;
             }
             out[v] = next;
             for op in ops {
-                if let Some(&w) = index.get(&op.image(c)) {
+                op.image_into(c, &mut buf);
+                if let Some(&w) = index.get(buf.as_slice()) {
                     out[w] = next;
                 }
             }
@@ -332,9 +516,11 @@ pub fn variable_orbits(level: &Level, ops: &[SiteMap]) -> Vec<usize> {
         }
         v
     }
+    let mut buf = Vec::new();
     for (v, c) in level.variables.iter().enumerate() {
         for op in ops {
-            if let Some(&w) = index.get(&op.image(c)) {
+            op.image_into(c, &mut buf);
+            if let Some(&w) = index.get(buf.as_slice()) {
                 let (a, b) = (find(&mut root, v), find(&mut root, w));
                 if a != b {
                     root[a.max(b)] = a.min(b);

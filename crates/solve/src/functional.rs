@@ -1034,6 +1034,26 @@ impl<'a> Functional<'a> {
     /// `2^-n Σ_c |ξ_c| / p`). A probability's relative precision is about 10⁻¹⁶ times
     /// this; beyond ~10¹² the state is at the edge of what doubles can hold.
     pub fn cancellation(&self, x: &[f64]) -> f64 {
+        if self.setup.basis == Basis::Walsh && self.setup.reference.is_none() {
+            // Plain correlations (the h = 0 follower's every solve): each region's
+            // worst ratio is its sum over the smallest probability, in one pass.
+            let mut p = Vec::new();
+            let mut worst: f64 = 1.0;
+            for (ri, r) in self.setup.regions.iter().enumerate() {
+                p.resize(1 << r.n, 0.0);
+                if !self.probabilities(r, ri, x, &mut p) {
+                    return f64::INFINITY;
+                }
+                let sum: f64 = 1.0
+                    + r.vars[1..]
+                        .iter()
+                        .map(|&v| x[v as usize].abs())
+                        .sum::<f64>();
+                let smallest = p.iter().copied().fold(f64::INFINITY, f64::min);
+                worst = worst.max(sum / p.len() as f64 / smallest);
+            }
+            return worst;
+        }
         let v = self.values(x);
         let mut worst: f64 = 1.0;
         for (ri, r) in self.setup.regions.iter().enumerate() {

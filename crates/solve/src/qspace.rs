@@ -23,7 +23,7 @@ use std::sync::{Arc, Mutex, OnceLock};
 
 use nalgebra::{Complex, DMatrix, DVector};
 use rungs_lattice::symmetry::SiteMap;
-use rungs_lattice::{Cell, Cluster, Lattice, Level};
+use rungs_lattice::{Cell, Lattice, Level};
 
 use crate::dd::Dd;
 use crate::functional::{upper_pairs, Block, Functional, KernelKind, RegionKernel};
@@ -38,6 +38,12 @@ pub type Wavevector = [f64; 3];
 pub fn phase(q: &Wavevector, t: &Cell) -> Complex<f64> {
     let a = std::f64::consts::TAU * (q[0] * t[0] as f64 + q[1] * t[1] as f64 + q[2] * t[2] as f64);
     Complex::new(a.cos(), a.sin())
+}
+
+/// `cos 2π q·t`, the real part of [`phase`] (the same number), without the sine.
+#[inline]
+pub fn phase_cos(q: &Wavevector, t: &Cell) -> f64 {
+    (std::f64::consts::TAU * (q[0] * t[0] as f64 + q[1] * t[1] as f64 + q[2] * t[2] as f64)).cos()
 }
 
 /// Whether `x` (reduced modulo 1) is within 10⁻⁹ of an integer.
@@ -269,7 +275,7 @@ impl<'f> QHessian<'f> {
         rows.clear();
         rows.extend(
             self.block_masks(k, offs)
-                .map(|(mask, row, t)| (mask, row, phase(q, t).re.signum() * self.row_scale[row])),
+                .map(|(mask, row, t)| (mask, row, phase_cos(q, t).signum() * self.row_scale[row])),
         );
     }
 
@@ -287,7 +293,7 @@ impl<'f> QHessian<'f> {
         for &(a, b, c, cell) in &self.quad {
             let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
             if pa != usize::MAX && pb != usize::MAX {
-                let ph = phase(q, &cell).re.signum() * c * self.row_scale[pa] * self.row_scale[pb];
+                let ph = phase_cos(q, &cell).signum() * c * self.row_scale[pa] * self.row_scale[pb];
                 let (lo, hi) = (pa.min(pb), pa.max(pb));
                 h[(lo, hi)] += if lo == hi { 2.0 * ph } else { ph };
             }
@@ -311,7 +317,7 @@ impl<'f> QHessian<'f> {
         for &(a, b, c, cell) in &self.quad {
             let (pa, pb) = (self.block.pos[a], self.block.pos[b]);
             if pa != usize::MAX && pb != usize::MAX {
-                let ph = phase(q, &cell).re.signum() * c * self.row_scale[pa] * self.row_scale[pb];
+                let ph = phase_cos(q, &cell).signum() * c * self.row_scale[pa] * self.row_scale[pb];
                 acc[pa + m * pb] = acc[pa + m * pb].add_f64(ph);
                 acc[pb + m * pa] = acc[pb + m * pa].add_f64(ph);
             }
@@ -558,7 +564,13 @@ impl QHessian<'_> {
     /// shared variables after the private ones are eliminated (see [`Condensed`]), or the
     /// block's order where nothing is eliminated.
     pub fn factorised_order(&self) -> usize {
-        match &*self.reduced(0.0) {
+        self.factorised_order_above(0.0)
+    }
+
+    /// [`QHessian::factorised_order`] for the tests of [`QHessian::is_positive_definite_above`]
+    /// with `shift` (the elimination is built per shift, and kept).
+    pub fn factorised_order_above(&self, shift: f64) -> usize {
+        match &*self.reduced(shift) {
             Reduced::Condensed(c) => c.shared,
             _ => self.block.vars.len(),
         }
@@ -709,6 +721,7 @@ impl Projection {
         block: &crate::functional::Block,
     ) -> Projection {
         let index = variable_index(level);
+        let mut buf = Vec::new();
         let little: Vec<&SiteMap> = ops.iter().filter(|op| sends_q(&op.rot, q, 1)).collect();
         let mut rows = vec![(usize::MAX, Complex::new(0.0, 0.0)); block.vars.len()];
         let mut done = vec![false; level.variables.len()];
@@ -720,7 +733,7 @@ impl Projection {
             let mut members: Vec<(usize, Complex<f64>)> = Vec::new();
             let mut consistent = true;
             for op in &little {
-                let Some((w, t)) = variable_image(level, &index, op, v0) else {
+                let Some((w, t)) = variable_image(level, &index, op, v0, &mut buf) else {
                     consistent = false;
                     break;
                 };
@@ -792,38 +805,30 @@ pub(crate) fn sends_q(r: &[[i32; 3]; 3], q: &Wavevector, sign: i32) -> bool {
 }
 
 /// Every variable of `level` by its cluster.
-fn variable_index(level: &Level) -> foldhash::HashMap<&Cluster, usize> {
+fn variable_index(level: &Level) -> VariableIndex<'_> {
     level
         .variables
         .iter()
         .enumerate()
-        .map(|(i, c)| (c, i))
+        .map(|(i, c)| (c.key(), i))
         .collect()
 }
 
+/// Every variable of a level by its cluster's [`rungs_lattice::Cluster::key`].
+type VariableIndex<'l> = foldhash::HashMap<&'l [(Cell, usize)], usize>;
+
 /// The image of variable `v` (placed with its first site in cell 0) under `op`: the
 /// variable `w` and the cell `t` of its first site, `op(v@0) = w@t`. `None` when the
-/// image is not a variable of the level.
+/// image is not a variable of the level. `buf` is scratch space.
 fn variable_image(
     level: &Level,
-    index: &foldhash::HashMap<&Cluster, usize>,
+    index: &VariableIndex<'_>,
     op: &SiteMap,
     v: usize,
+    buf: &mut Vec<(Cell, usize)>,
 ) -> Option<(usize, Cell)> {
-    let mut img: Vec<(Cell, usize)> = level.variables[v]
-        .sites()
-        .map(|(a, c)| {
-            let (b, d) = op.apply(a, c);
-            (d, b)
-        })
-        .collect();
-    img.sort_unstable();
-    let t = img.first()?.0;
-    let canon = Cluster::canonical(
-        img.iter()
-            .map(|&(c, b)| (b, [c[0] - t[0], c[1] - t[1], c[2] - t[2]])),
-    );
-    index.get(&canon).map(|&w| (w, t))
+    let t = op.image_into(&level.variables[v], buf);
+    index.get(buf.as_slice()).map(|&w| (w, t))
 }
 
 /// Real symmetric forms of `H(q)` at complex wavevectors, from the point-group
@@ -864,6 +869,7 @@ impl RealForms {
     /// involution of its variables (inversion, two-fold rotations, mirrors).
     pub fn new(level: &Level, ops: &[SiteMap], block: &crate::functional::Block) -> RealForms {
         let index = variable_index(level);
+        let mut buf = Vec::new();
         let maps: Vec<Involution> = ops
             .iter()
             .filter_map(|op| {
@@ -871,7 +877,7 @@ impl RealForms {
                     .vars
                     .iter()
                     .map(|&v| {
-                        let (w, t) = variable_image(level, &index, op, v)?;
+                        let (w, t) = variable_image(level, &index, op, v, &mut buf)?;
                         let row = block.pos[w];
                         (row != usize::MAX).then_some((row, t))
                     })
@@ -1031,14 +1037,14 @@ impl QHessian<'_> {
                     (
                         mask,
                         col,
-                        phase(q, t).re.signum() * a.re * self.row_scale[row],
+                        phase_cos(q, t).signum() * a.re * self.row_scale[row],
                     )
                 })
             }));
             symmetric_pairs(&rows, k, &mut h);
         }
         for ((ca, aa), (cb, ab), (pa, pb), c, cell) in self.projected_quad(proj) {
-            let ph = phase(q, &cell).re.signum() * self.row_scale[pa] * self.row_scale[pb];
+            let ph = phase_cos(q, &cell).signum() * self.row_scale[pa] * self.row_scale[pb];
             let (lo, hi) = (ca.min(cb), ca.max(cb));
             let v = aa.re * ab.re * ph * c;
             h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
@@ -1081,7 +1087,7 @@ impl QHessian<'_> {
                         .block_masks(k, offs)
                         .filter_map(|(mask, row, t)| {
                             let (col, a) = proj.rows[row];
-                            let sign = phase(q, t).re.signum() * a.re.signum();
+                            let sign = phase_cos(q, t).signum() * a.re.signum();
                             (col != usize::MAX).then_some((mask, col, sign as i32))
                         })
                         .collect();
@@ -1100,7 +1106,7 @@ impl QHessian<'_> {
             }
         }
         for ((ca, aa), (cb, ab), (pa, pb), c, cell) in self.projected_quad(proj) {
-            let ph = phase(q, &cell).re.signum() * self.row_scale[pa] * self.row_scale[pb];
+            let ph = phase_cos(q, &cell).signum() * self.row_scale[pa] * self.row_scale[pb];
             let (lo, hi) = (ca.min(cb), ca.max(cb));
             let v = aa.re * ab.re * ph * c;
             h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
@@ -1135,6 +1141,19 @@ impl QHessian<'_> {
                 vector: DVector::zeros(self.block.vars.len()),
             },
         }
+    }
+
+    /// Whether every eigenvalue on the symmetric subspace at a real wavevector exceeds
+    /// `s` (one Cholesky factorisation of `B†H(q)B − s·I`).
+    pub fn projected_exceeds(&self, q: &Wavevector, proj: &Projection, s: f64) -> bool {
+        if proj.is_empty() {
+            return true;
+        }
+        let mut m = self.projected_real_matrix(q, proj);
+        for i in 0..m.nrows() {
+            m[(i, i)] -= s;
+        }
+        linalg::positive_definite_real(&m)
     }
 
     /// The smallest eigenvalue on the symmetric subspace.
@@ -1234,7 +1253,7 @@ pub fn coupling_top(lattice: &Lattice, q: &Wavevector) -> f64 {
         return lattice
             .bonds()
             .iter()
-            .map(|b| 2.0 * b.j * phase(q, &b.cell).re)
+            .map(|b| 2.0 * b.j * phase_cos(q, &b.cell))
             .sum();
     }
     coupling_matrix(lattice, q)

@@ -297,6 +297,15 @@ impl Candidate {
             None => qh.lowest_value(&self.q),
         }
     }
+    /// Whether the watched matrix (the symmetric subspace at a real q) has every
+    /// eigenvalue above `s`, by one factorisation; false where that is not cheap to tell.
+    fn exceeds(&self, qh: &QHessian, s: f64) -> bool {
+        match &self.projection {
+            Some(p) if is_real(&self.q) => qh.projected_exceeds(&self.q, p, s),
+            _ => false,
+        }
+    }
+
     fn mode(&self, qh: &QHessian) -> LowestMode {
         match &self.projection {
             Some(p) => qh.projected_lowest(&self.q, p),
@@ -308,6 +317,10 @@ impl Candidate {
 /// One candidate's value at a probed temperature: (candidate, value, watched on its
 /// symmetric subspace).
 type Probed = (usize, f64, bool);
+
+/// A probe's answer while refining: (T, the one candidate followed, (value, lowest
+/// candidate, noise)).
+type Memo = (f64, Option<usize>, (f64, usize, f64));
 
 /// The stability probe of the dense path: the smallest eigenvalue of `H(q)` over the
 /// candidate wavevectors at the disordered state.
@@ -330,6 +343,9 @@ struct QProbe<'a, 'l> {
     /// value, watched on its subspace)]), so that the root's search need not probe the
     /// bracket's upper end again for the one candidate it follows.
     probed: RefCell<Vec<(f64, Vec<Probed>)>>,
+    /// The values found while refining: (T, the candidate followed, (value, lowest
+    /// candidate, noise)); cleared when a round starts again with other candidates.
+    memo: RefCell<Vec<Memo>>,
     observe: &'l (dyn Fn(&str) + Sync),
 }
 
@@ -353,11 +369,23 @@ impl QProbe<'_, '_> {
             if only.is_some_and(|o| o != i) {
                 continue;
             }
-            let mut v = c.value(&qh);
+            // A candidate that one factorisation shows above the lowest value so far
+            // (less the tie margin) cannot be the lowest: its eigenvalue is not needed
+            // (NaN: not computed), unless it may be negative.
+            let floor = best - TIE.max(1e-15 * best.abs());
+            let mut v = if floor > 0.0 && c.exceeds(&qh, floor) {
+                f64::NAN
+            } else {
+                c.value(&qh)
+            };
             // The symmetric subspace is an accelerator: when the full H(q) is not positive
             // definite although the subspace says stable, a less symmetric mode is the
             // soft one, and this candidate is watched on the full block from now.
-            if full_check && c.projection.is_some() && v > 0.0 && !qh.is_positive_definite(&c.q) {
+            if full_check
+                && c.projection.is_some()
+                && (v > 0.0 || v.is_nan())
+                && !qh.is_positive_definite(&c.q)
+            {
                 c.projection = None;
                 v = c.value(&qh);
             }
@@ -397,7 +425,23 @@ impl Probe for QProbe<'_, '_> {
             self.phase.borrow(),
             crate::report_num(t)
         ));
-        let (v, arg, noise) = self.evaluate(t)?;
+        // Brent may ask for a temperature again (its last steps): while refining, the
+        // answer for the same temperature and candidates is kept.
+        let only = self.only.get();
+        let refining = *self.phase.borrow() != STEPPING_DOWN;
+        let known = self
+            .memo
+            .borrow()
+            .iter()
+            .find(|m| refining && m.0 == t && m.1 == only)
+            .map(|m| m.2);
+        let (v, arg, noise) = match known {
+            Some(r) => r,
+            None => self.evaluate(t)?,
+        };
+        if refining && known.is_none() {
+            self.memo.borrow_mut().push((t, only, (v, arg, noise)));
+        }
         *self.last.borrow_mut() = (t, noise, arg);
         Ok(v)
     }
@@ -516,6 +560,7 @@ pub fn critical_temperature_observed(
         last: RefCell::new((f64::NAN, 0.0, 0)),
         only: std::cell::Cell::new(None),
         probed: RefCell::new(Vec::new()),
+        memo: RefCell::new(Vec::new()),
         phase: RefCell::new(STEPPING_DOWN),
         observe,
     };
@@ -543,6 +588,7 @@ pub fn critical_temperature_observed(
     let mut notes = Vec::new();
     for _round in 0..4 {
         *probe.phase.borrow_mut() = STEPPING_DOWN;
+        probe.memo.borrow_mut().clear();
         let bracket = step_down(&mut probe, t_start, t_min, rules)?;
         let (lo, hi, values) = match bracket {
             Bracket::Found { lo, hi, values } => (lo, hi, values),
@@ -609,7 +655,7 @@ pub fn critical_temperature_observed(
         let step = 1.0 / 64.0;
         let neighbours = distinct_neighbours(&ops, &q_star, d, step);
         let lower = |p: &Wavevector| !qh.is_positive_definite_above(p, lam_star - tol);
-        let neighbour_lower = if worth_threads(&qh) {
+        let neighbour_lower = if worth_threads(&qh, lam_star - tol) {
             neighbours.par_iter().any(lower)
         } else {
             neighbours.iter().any(lower)
@@ -674,7 +720,7 @@ fn irreducible(
         k
     };
     let inverses: Vec<[[i32; 3]; 3]> = ops.iter().filter_map(|op| inverse3(&op.rot)).collect();
-    let mut seen = std::collections::HashSet::new();
+    let mut seen = foldhash::HashSet::default();
     let mut out: Vec<Wavevector> = Vec::new();
     for q in grid {
         if seen.contains(&key(&q)) {
@@ -810,7 +856,7 @@ fn soft_elsewhere(
     // The grid's factorisations are independent: spread over the threads (the first
     // unstable wavevector in grid order is kept, as a sequential scan would).
     let soft = |q: &Wavevector| !qh.is_positive_definite(q);
-    let unstable = if worth_threads(qh) {
+    let unstable = if worth_threads(qh, 0.0) {
         verify.par_iter().position_first(soft)
     } else {
         verify.iter().position(soft)
@@ -842,10 +888,12 @@ fn watch_also(candidates: &mut Vec<Candidate>, new_q: Vec<Candidate>, d: usize) 
     }
 }
 
-/// Whether factorisations of `H(q)` are worth spreading over threads: below order 48
-/// one takes microseconds, less than waking the pool.
-fn worth_threads(qh: &QHessian) -> bool {
-    qh.block().vars.len() >= 48
+/// Whether factorisations of `H(q)` (shifted by `shift`) are worth spreading over
+/// threads: below order 48 one takes microseconds, less than waking the pool. The order
+/// is the one factorised, after the private variables are eliminated (the cube's 109
+/// variables leave 13).
+fn worth_threads(qh: &QHessian, shift: f64) -> bool {
+    qh.factorised_order_above(shift) >= 48
 }
 
 /// Points per axis of the verification grid.
@@ -1098,7 +1146,7 @@ fn one_per_class(
     unit: f64,
 ) -> Vec<Wavevector> {
     let key = |v: &Wavevector| v.map(|c| (c / unit).round() as i64);
-    let mut seen = std::collections::HashSet::new();
+    let mut seen = foldhash::HashSet::default();
     let mut out = Vec::new();
     for delta in deltas {
         if !seen.insert(key(&delta)) {

@@ -116,3 +116,59 @@ fn supercells_keep_the_point_group_times_the_inner_translations() {
     let l = square(0.5).supercell([6, 6, 1]).unwrap();
     assert_eq!(point_group(&l).len(), 4 * 36);
 }
+
+#[test]
+fn rotations_from_bond_images_are_the_candidates_that_keep_the_bonds() {
+    // The fast search (images of d independent bond vectors) against the test of every
+    // candidate rotation, on one-site lattices in one, two and three dimensions, with
+    // equal and unequal couplings and second neighbours (the sets must be equal).
+    let one_site = |d: usize, bonds: &[([i32; 3], f64)]| {
+        let b: Vec<(usize, usize, [i32; 3], f64)> =
+            bonds.iter().map(|&(c, j)| (0, 0, c, j)).collect();
+        lattice(d, 1, &b, &[])
+    };
+    let cases = [
+        one_site(1, &[([1, 0, 0], 1.0), ([2, 0, 0], -0.5)]),
+        one_site(2, &[([1, 0, 0], 1.0), ([0, 1, 0], 1.0)]),
+        one_site(2, &[([1, 0, 0], 1.0), ([0, 1, 0], 0.5)]),
+        one_site(2, &[([1, 0, 0], 1.0), ([0, 1, 0], 1.0), ([1, 1, 0], -0.3)]),
+        // Triangular: a1, a2 and a1 − a2.
+        one_site(2, &[([1, 0, 0], 1.0), ([0, 1, 0], 1.0), ([1, -1, 0], 1.0)]),
+        one_site(3, &[([1, 0, 0], 1.0), ([0, 1, 0], 1.0), ([0, 0, 1], 1.0)]),
+        one_site(3, &[([1, 0, 0], 1.0), ([0, 1, 0], 1.0), ([0, 0, 1], 0.7)]),
+        // Face-centred cubic on its primitive cell: the twelve neighbours.
+        one_site(
+            3,
+            &[
+                ([1, 0, 0], 1.0),
+                ([0, 1, 0], 1.0),
+                ([0, 0, 1], 1.0),
+                ([1, -1, 0], 1.0),
+                ([0, 1, -1], 1.0),
+                ([1, 0, -1], 1.0),
+            ],
+        ),
+    ];
+    for l in &cases {
+        let d = l.dimension();
+        let vectors = bond_vectors(l);
+        // In one dimension the two candidates are fewer than the trials: no fast path.
+        let Some(fast) = rotations_from_bonds(d, &vectors) else {
+            assert_eq!(d, 1);
+            continue;
+        };
+        let mut fast: Vec<[[i32; 3]; 3]> = fast
+            .into_iter()
+            .filter(|r| keeps_bond_vectors(r, &vectors))
+            .collect();
+        let mut all: Vec<[[i32; 3]; 3]> = candidate_rotations(d)
+            .iter()
+            .copied()
+            .filter(|r| keeps_bond_vectors(r, &vectors))
+            .collect();
+        fast.sort_unstable();
+        all.sort_unstable();
+        assert!(!all.is_empty());
+        assert_eq!(fast, all, "dimension {d}, bonds {vectors:?}");
+    }
+}
