@@ -64,7 +64,7 @@ impl StateGroups {
     ///
     /// `None` when grouping would not pay: when the outer products of the groups cost
     /// more than the visits of pairs of masks they replace, or a region's columns would
-    /// hold more than [`MAX_ENTRIES`] numbers.
+    /// hold more than 2²² numbers (16 MB).
     pub fn new(
         m: usize,
         factor: &[f64],

@@ -170,7 +170,35 @@ pub fn mean_field_maxima(lattice: &Lattice) -> Vec<(Wavevector, f64)> {
         _ => 12,
     };
     let grid = full_grid(d, n);
-    let values: Vec<f64> = grid.iter().map(|q| coupling_top(lattice, q)).collect();
+    let values: Vec<f64> = if lattice.sites_per_cell() == 1 {
+        // One site per cell on the grid q = k/n: J(q) = Σ_bonds 2J cos(2π (k·δ)/n) takes
+        // its cosines from a table of n values (exact symmetry between grid points, and
+        // none of the 3·n³ cosines a direct sum costs on the simple cubic lattice).
+        let table: Vec<f64> = (0..n)
+            .map(|k| (std::f64::consts::TAU * k as f64 / n as f64).cos())
+            .collect();
+        let n_i = n as i64;
+        (0..grid.len())
+            .map(|code| {
+                let mut k = [0i64; 3];
+                let mut c = code;
+                for slot in k.iter_mut().take(d) {
+                    *slot = (c % n) as i64;
+                    c /= n;
+                }
+                lattice
+                    .bonds()
+                    .iter()
+                    .map(|b| {
+                        let dot: i64 = (0..3).map(|i| k[i] * i64::from(b.cell[i])).sum();
+                        2.0 * b.j * table[dot.rem_euclid(n_i) as usize]
+                    })
+                    .sum()
+            })
+            .collect()
+    } else {
+        grid.iter().map(|q| coupling_top(lattice, q)).collect()
+    };
     let mut found: Vec<(Wavevector, f64)> = Vec::new();
     let best = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
     let index = |code: &[usize]| -> usize { code.iter().rev().fold(0, |acc, &c| acc * n + c) };
