@@ -1043,14 +1043,20 @@ impl QHessian<'_> {
             }));
             symmetric_pairs(&rows, k, &mut h);
         }
+        self.add_projected_quad_real(q, proj, &mut h);
+        h.fill_lower_triangle_with_upper_triangle();
+        h
+    }
+
+    /// The factorised bonds on the symmetric subspace at a real wavevector, into the
+    /// upper triangle of `h`.
+    fn add_projected_quad_real(&self, q: &Wavevector, proj: &Projection, h: &mut DMatrix<f64>) {
         for ((ca, aa), (cb, ab), (pa, pb), c, cell) in self.projected_quad(proj) {
             let ph = phase_cos(q, &cell).signum() * self.row_scale[pa] * self.row_scale[pb];
             let (lo, hi) = (ca.min(cb), ca.max(cb));
             let v = aa.re * ab.re * ph * c;
             h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
         }
-        h.fill_lower_triangle_with_upper_triangle();
-        h
     }
 
     /// [`Self::projected_real_matrix`] in the grouped Gram form (see [`crate::gram`]):
@@ -1105,12 +1111,7 @@ impl QHessian<'_> {
                 h[(i, j)] *= scale[i] * scale[j];
             }
         }
-        for ((ca, aa), (cb, ab), (pa, pb), c, cell) in self.projected_quad(proj) {
-            let ph = phase_cos(q, &cell).signum() * self.row_scale[pa] * self.row_scale[pb];
-            let (lo, hi) = (ca.min(cb), ca.max(cb));
-            let v = aa.re * ab.re * ph * c;
-            h[(lo, hi)] += if lo == hi { 2.0 * v } else { v };
-        }
+        self.add_projected_quad_real(q, proj, &mut h);
         h.fill_lower_triangle_with_upper_triangle();
         Some(h)
     }
