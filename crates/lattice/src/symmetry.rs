@@ -139,23 +139,12 @@ fn rotations_from_bonds(d: usize, vectors: &[(Cell, u64)]) -> Option<Vec<[[i32; 
     if d == 0 {
         return None;
     }
-    // d independent bond vectors, greedily (the columns of B, identity beyond d).
+    // d independent bond vectors, greedily: the columns of B.
     let mut basis: Vec<(Cell, u64)> = Vec::new();
     for &v in vectors {
-        let mut m = [[0i32; 3]; 3];
-        for (k, row) in m.iter_mut().enumerate() {
-            *row = [0, 0, 0];
-            row[k] = 1;
-        }
-        for (col, &(c, _)) in basis.iter().chain([&v]).enumerate() {
-            for (row, r) in m.iter_mut().enumerate().take(d) {
-                r[col] = c[row];
-            }
-        }
-        // The chosen columns plus unit vectors fill the rest: independent when the
-        // leading minor of the chosen columns is non-zero in some completion; test the
-        // rank by the determinant with the remaining unit columns.
-        if independent(&m, basis.len() + 1, d) {
+        let mut cells: Vec<Cell> = basis.iter().map(|b| b.0).collect();
+        cells.push(v.0);
+        if independent(&cells) {
             basis.push(v);
             if basis.len() == d {
                 break;
@@ -169,34 +158,19 @@ fn rotations_from_bonds(d: usize, vectors: &[(Cell, u64)]) -> Option<Vec<[[i32; 
     if trials >= candidate_rotations(d).len() {
         return None;
     }
-    let mut b = [[0i32; 3]; 3];
-    for (k, row) in b.iter_mut().enumerate().skip(d) {
-        row[k] = 1;
-    }
-    for (col, (c, _)) in basis.iter().enumerate() {
-        for (row, r) in b.iter_mut().enumerate().take(d) {
-            r[col] = c[row];
-        }
-    }
+    let b = with_columns(basis.iter().map(|v| v.0), d);
     let det = det3(&b);
     let adj = adjugate3(&b);
     let mut out = Vec::new();
     let mut choice = vec![0usize; d];
     'trials: loop {
         // T: the images of B's columns, each a bond vector of the same coupling.
-        let mut t = [[0i32; 3]; 3];
-        for (k, row) in t.iter_mut().enumerate().skip(d) {
-            row[k] = 1;
-        }
-        let mut ok = true;
-        for (col, &ci) in choice.iter().enumerate() {
-            let (c, j) = vectors[ci];
-            ok &= j == basis[col].1;
-            for (row, r) in t.iter_mut().enumerate().take(d) {
-                r[col] = c[row];
-            }
-        }
-        if ok {
+        if choice
+            .iter()
+            .zip(&basis)
+            .all(|(&ci, v)| vectors[ci].1 == v.1)
+        {
+            let t = with_columns(choice.iter().map(|&ci| vectors[ci].0), d);
             let mut r = [[0i32; 3]; 3];
             let mut integral = true;
             for (i, row) in r.iter_mut().enumerate() {
@@ -224,33 +198,39 @@ fn rotations_from_bonds(d: usize, vectors: &[(Cell, u64)]) -> Option<Vec<[[i32; 
     Some(out)
 }
 
-/// Whether the first `k` columns of `m` (d × d block) are linearly independent: some
-/// k × k minor on those columns is non-zero (k ≤ 3).
-fn independent(m: &[[i32; 3]; 3], k: usize, d: usize) -> bool {
-    let rows: Vec<usize> = (0..d).collect();
-    let minors = |sel: &[usize]| -> i64 {
-        match sel.len() {
-            1 => i64::from(m[sel[0]][0]),
-            2 => {
-                i64::from(m[sel[0]][0]) * i64::from(m[sel[1]][1])
-                    - i64::from(m[sel[0]][1]) * i64::from(m[sel[1]][0])
-            }
-            _ => {
-                let mut s = [[0i32; 3]; 3];
-                for (a, &r) in sel.iter().enumerate() {
-                    s[a] = m[r];
-                }
-                i64::from(det3(&s))
-            }
+/// The matrix with `columns` (cell offsets) as its first columns on the first `d` rows,
+/// identity on the unused dimensions.
+fn with_columns(columns: impl Iterator<Item = Cell>, d: usize) -> [[i32; 3]; 3] {
+    let mut m = [[0i32; 3]; 3];
+    for (k, row) in m.iter_mut().enumerate().skip(d) {
+        row[k] = 1;
+    }
+    for (col, c) in columns.enumerate() {
+        for (row, r) in m.iter_mut().enumerate().take(d) {
+            r[col] = c[row];
         }
+    }
+    m
+}
+
+/// Whether one, two or three integer vectors are linearly independent: non-zero, a
+/// non-zero cross product, a non-zero determinant.
+fn independent(cells: &[Cell]) -> bool {
+    let cross = |a: &Cell, b: &Cell| {
+        [
+            a[1] * b[2] - a[2] * b[1],
+            a[2] * b[0] - a[0] * b[2],
+            a[0] * b[1] - a[1] * b[0],
+        ]
     };
-    match k {
-        1 => rows.iter().any(|&r| minors(&[r]) != 0),
-        2 => rows
-            .iter()
-            .flat_map(|&a| rows.iter().map(move |&b| (a, b)))
-            .any(|(a, b)| a < b && minors(&[a, b]) != 0),
-        _ => d >= 3 && minors(&[0, 1, 2]) != 0,
+    match cells {
+        [a] => *a != [0; 3],
+        [a, b] => cross(a, b) != [0; 3],
+        [a, b, c] => {
+            let n = cross(a, b);
+            n[0] * c[0] + n[1] * c[1] + n[2] * c[2] != 0
+        }
+        _ => false,
     }
 }
 
@@ -321,13 +301,13 @@ pub fn point_group(lattice: &Lattice) -> Vec<SiteMap> {
         .collect();
     let mut found: BTreeSet<FoundOp> = BTreeSet::new();
     // One site per cell: R must map every bond vector onto a bond vector with the same
-    // coupling, a test that discards almost every candidate before any search.
+    // coupling, a test that discards almost every candidate before any search; the
+    // candidates are found from the images of d independent bond vectors (|bonds|^d
+    // trials, 216 on the simple cubic lattice) rather than by testing all 3,480, where
+    // that is fewer.
     let vectors = bond_vectors(lattice);
     let keeps_bonds = |rot: &[[i32; 3]; 3]| nb > 1 || keeps_bond_vectors(rot, &vectors);
     let d = lattice.dimension();
-    // One site per cell: the rotations are found from the images of d independent bond
-    // vectors (|bonds|^d trials, 216 on the simple cubic lattice) rather than by testing
-    // every candidate (3,480 in three dimensions), where that is fewer.
     let from_bonds = (nb == 1)
         .then(|| rotations_from_bonds(d, &vectors))
         .flatten();
@@ -477,17 +457,26 @@ fn compose_rot(a: &[[i32; 3]; 3], b: &[[i32; 3]; 3]) -> [[i32; 3]; 3] {
     rot
 }
 
+/// Every variable of a level by its cluster's [`Cluster::key`].
+pub type VariableIndex<'l> = foldhash::HashMap<&'l [(Cell, usize)], usize>;
+
+/// The index of every variable of `level` by its cluster's key, against which images
+/// from [`SiteMap::image_into`] are looked up.
+pub fn variable_index(level: &Level) -> VariableIndex<'_> {
+    level
+        .variables
+        .iter()
+        .enumerate()
+        .map(|(i, c)| (c.key(), i))
+        .collect()
+}
+
 /// Orbit id of every correlation variable under `ops` (ids dense, in order of first
 /// appearance). When `ops` is a group, each orbit is `{g v : g ∈ ops}` and is listed
 /// once from its first variable (orbits × |ops| images); otherwise the orbits of the
 /// group `ops` generates are found by union–find over every variable and operation.
 pub fn variable_orbits(level: &Level, ops: &[SiteMap]) -> Vec<usize> {
-    let index: foldhash::HashMap<&[(Cell, usize)], usize> = level
-        .variables
-        .iter()
-        .enumerate()
-        .map(|(i, c)| (c.key(), i))
-        .collect();
+    let index = variable_index(level);
     let n = level.variables.len();
     if is_group(ops) {
         let mut out = vec![usize::MAX; n];

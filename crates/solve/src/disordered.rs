@@ -154,12 +154,15 @@ impl<'a> Disordered<'a> {
     /// The disordered state at `t`: the functional of the full level (in the
     /// follower's basis, with the reference the state is an offset from) and the state.
     pub fn solve(&self, t: f64) -> Result<(Functional<'a>, Vec<f64>), SolveError> {
-        let history = self.history.borrow().clone();
-        let solved = match history.iter().find(|(tk, _)| *tk == t) {
-            // Asked again (the Tc search's root and its checks): the same state.
-            Some((_, s)) => s.clone(),
-            None => self.solve_new(t, &history)?,
+        let known = {
+            let history = self.history.borrow();
+            match history.iter().find(|(tk, _)| *tk == t) {
+                // Asked again (the Tc search's root and its checks): the same state.
+                Some((_, s)) => Ok(s.clone()),
+                None => self.solve_new(t, &history),
+            }
         };
+        let solved = known?;
         self.remember(t, &solved);
         let expand = |v: &[f64]| -> Vec<f64> {
             match &self.reduced {

@@ -198,6 +198,12 @@ pub struct RegionKernel<'f> {
 }
 
 impl RegionKernel<'_> {
+    /// Whether this is a plain Walsh kernel (correlations, doubles), for which `1/p` is
+    /// kept and the grouped Gram and moment forms apply.
+    pub fn is_plain_walsh(&self) -> bool {
+        !self.inv_p.is_empty()
+    }
+
     /// The Hessian contribution for masks k, l.
     #[inline]
     pub fn entry(&self, k: usize, l: usize) -> f64 {
@@ -891,16 +897,11 @@ impl<'a> Functional<'a> {
                 }
             }
         }
-        for &(a, b, c) in self.quadratic_terms() {
-            let (pa, pb) = (pos[a], pos[b]);
-            if pa != usize::MAX && pb != usize::MAX {
-                let (lo, hi) = (pa.min(pb), pa.max(pb));
-                let v = if lo == hi { 2.0 * c } else { c };
-                if precise {
-                    acc[lo + m * hi] = acc[lo + m * hi].add_f64(v);
-                } else {
-                    h[(lo, hi)] += v;
-                }
+        for (at, v) in self.quadratic_upper(pos, m) {
+            if precise {
+                acc[at] = acc[at].add_f64(v);
+            } else {
+                h.as_mut_slice()[at] += v;
             }
         }
         for j in 0..m {
@@ -915,6 +916,23 @@ impl<'a> Functional<'a> {
             }
         }
         Some(h)
+    }
+
+    /// The factorised bonds' part of a symmetric Hessian block of order `m` (`pos[v]`
+    /// the row of variable v, `usize::MAX` outside), on its upper triangle: (index of the
+    /// entry, column-major; value), a term on the diagonal counted twice.
+    fn quadratic_upper<'s>(
+        &'s self,
+        pos: &'s [usize],
+        m: usize,
+    ) -> impl Iterator<Item = (usize, f64)> + 's {
+        self.quadratic_terms().iter().filter_map(move |&(a, b, c)| {
+            let (pa, pb) = (pos[a], pos[b]);
+            (pa != usize::MAX && pb != usize::MAX).then(|| {
+                let (lo, hi) = (pa.min(pb), pa.max(pb));
+                (lo + m * hi, if lo == hi { 2.0 * c } else { c })
+            })
+        })
     }
 
     /// The cluster states of every region grouped for [`Functional::hessian_block_grouped`]
@@ -968,12 +986,8 @@ impl<'a> Functional<'a> {
             let scale = self.t * r.coefficient / (size as f64 * size as f64);
             groups.add_region(ri, &p, scale, h.as_mut_slice());
         }
-        for &(a, b, c) in self.quadratic_terms() {
-            let (pa, pb) = (block.pos[a], block.pos[b]);
-            if pa != usize::MAX && pb != usize::MAX {
-                let (lo, hi) = (pa.min(pb), pa.max(pb));
-                h[(lo, hi)] += if lo == hi { 2.0 * c } else { c };
-            }
+        for (at, v) in self.quadratic_upper(&block.pos, m) {
+            h.as_mut_slice()[at] += v;
         }
         h.fill_lower_triangle_with_upper_triangle();
         Some(h)
@@ -1034,50 +1048,34 @@ impl<'a> Functional<'a> {
     /// `2^-n Σ_c |ξ_c| / p`). A probability's relative precision is about 10⁻¹⁶ times
     /// this; beyond ~10¹² the state is at the edge of what doubles can hold.
     pub fn cancellation(&self, x: &[f64]) -> f64 {
-        if self.setup.basis == Basis::Walsh && self.setup.reference.is_none() {
-            // Plain correlations (the h = 0 follower's every solve): each region's
-            // worst ratio is its sum over the smallest probability, in one pass.
-            let mut p = Vec::new();
-            let mut worst: f64 = 1.0;
-            for (ri, r) in self.setup.regions.iter().enumerate() {
-                p.resize(1 << r.n, 0.0);
-                if !self.probabilities(r, ri, x, &mut p) {
-                    return f64::INFINITY;
-                }
-                let sum: f64 = 1.0
-                    + r.vars[1..]
-                        .iter()
-                        .map(|&v| x[v as usize].abs())
-                        .sum::<f64>();
-                let smallest = p.iter().copied().fold(f64::INFINITY, f64::min);
-                worst = worst.max(sum / p.len() as f64 / smallest);
-            }
-            return worst;
-        }
-        let v = self.values(x);
+        let v: std::borrow::Cow<'_, [f64]> = match &self.setup.reference {
+            Some(_) => self.values(x).into(),
+            None => x.into(),
+        };
+        let (mut p, mut mags) = (Vec::new(), Vec::new());
         let mut worst: f64 = 1.0;
         for (ri, r) in self.setup.regions.iter().enumerate() {
-            let Some(p) = self.region_probabilities(ri, x) else {
-                return f64::INFINITY;
-            };
             let size = 1usize << r.n;
-            let mut mags = vec![0.0; size];
-            mags[0] = 1.0;
-            for (slot, &var) in mags.iter_mut().zip(&r.vars).skip(1) {
-                *slot = v[var as usize].abs();
+            p.resize(size, 0.0);
+            // (In the flip basis `p` is indexed by flip sets, as `mags` is.)
+            if !self.probabilities(r, ri, x, &mut p) {
+                return f64::INFINITY;
             }
+            let magnitudes =
+                std::iter::once(1.0).chain(r.vars[1..].iter().map(|&k| v[k as usize].abs()));
             match self.setup.basis {
+                // Every probability sums the same magnitudes: the smallest decides.
                 Basis::Walsh => {
-                    let total: f64 = mags.iter().sum::<f64>() / size as f64;
-                    for q in &p {
-                        worst = worst.max(total / q);
-                    }
+                    let total: f64 = magnitudes.sum::<f64>() / size as f64;
+                    let smallest = p.iter().copied().fold(f64::INFINITY, f64::min);
+                    worst = worst.max(total / smallest);
                 }
                 Basis::Flip { .. } => {
+                    mags.clear();
+                    mags.extend(magnitudes);
                     zeta_superset(&mut mags);
-                    // p is in spin labels; back to flip labels.
-                    for (a, m) in mags.iter().enumerate() {
-                        worst = worst.max(m / p[a ^ r.negative]);
+                    for (m, q) in mags.iter().zip(&p) {
+                        worst = worst.max(m / q);
                     }
                 }
             }

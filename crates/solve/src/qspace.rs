@@ -22,7 +22,7 @@
 use std::sync::{Arc, Mutex, OnceLock};
 
 use nalgebra::{Complex, DMatrix, DVector};
-use rungs_lattice::symmetry::SiteMap;
+use rungs_lattice::symmetry::{variable_index, SiteMap, VariableIndex};
 use rungs_lattice::{Cell, Lattice, Level};
 
 use crate::dd::Dd;
@@ -218,11 +218,7 @@ impl<'f> QHessian<'f> {
     /// of a visit of every pair of masks), plus the factorised bonds'
     /// `2 Re(ū_a h_ab u_b)`.
     pub fn quadratic_form(&self, q: &Wavevector, u: &DVector<Complex<f64>>) -> f64 {
-        if self
-            .kernels
-            .iter()
-            .any(|k| k.kind != KernelKind::Xor || k.kernel_lo.is_some() || k.inv_p.is_empty())
-        {
+        if !self.kernels.iter().all(RegionKernel::is_plain_walsh) {
             return (u.adjoint() * self.matrix(q) * u)[(0, 0)].re;
         }
         let mut total = 0.0;
@@ -498,7 +494,7 @@ fn moment_schur(
     e: &[(usize, usize)],
     p: &[(usize, usize)],
 ) -> Option<Option<DMatrix<f64>>> {
-    if k.kind != KernelKind::Xor || k.kernel_lo.is_some() || k.inv_p.is_empty() {
+    if !k.is_plain_walsh() {
         return None;
     }
     let size = 1usize << k.n;
@@ -804,19 +800,6 @@ pub(crate) fn sends_q(r: &[[i32; 3]; 3], q: &Wavevector, sign: i32) -> bool {
     })
 }
 
-/// Every variable of `level` by its cluster.
-fn variable_index(level: &Level) -> VariableIndex<'_> {
-    level
-        .variables
-        .iter()
-        .enumerate()
-        .map(|(i, c)| (c.key(), i))
-        .collect()
-}
-
-/// Every variable of a level by its cluster's [`rungs_lattice::Cluster::key`].
-type VariableIndex<'l> = foldhash::HashMap<&'l [(Cell, usize)], usize>;
-
 /// The image of variable `v` (placed with its first site in cell 0) under `op`: the
 /// variable `w` and the cell `t` of its first site, `op(v@0) = w@t`. `None` when the
 /// image is not a variable of the level. `buf` is scratch space.
@@ -1068,11 +1051,7 @@ impl QHessian<'_> {
     /// the kernels are not plain Walsh ones (double-double, flip probabilities) or
     /// grouping does not pay: the caller then visits the pairs of masks.
     fn projected_real_grouped(&self, q: &Wavevector, proj: &Projection) -> Option<DMatrix<f64>> {
-        if self
-            .kernels
-            .iter()
-            .any(|k| k.kind != KernelKind::Xor || k.kernel_lo.is_some() || k.inv_p.is_empty())
-        {
+        if !self.kernels.iter().all(RegionKernel::is_plain_walsh) {
             return None;
         }
         let m = proj.columns;
@@ -1144,17 +1123,23 @@ impl QHessian<'_> {
         }
     }
 
-    /// Whether every eigenvalue on the symmetric subspace at a real wavevector exceeds
-    /// `s` (one Cholesky factorisation of `B†H(q)B − s·I`).
-    pub fn projected_exceeds(&self, q: &Wavevector, proj: &Projection, s: f64) -> bool {
+    /// [`Self::projected_lowest_value`] at a real wavevector where some eigenvalue is at
+    /// or below `s`; `None` (one Cholesky factorisation of `B†H(q)B − s·I`, no
+    /// eigensolve) where every one exceeds it.
+    pub fn projected_lowest_value_below(
+        &self,
+        q: &Wavevector,
+        proj: &Projection,
+        s: f64,
+    ) -> Option<f64> {
         if proj.is_empty() {
-            return true;
+            return None;
         }
-        let mut m = self.projected_real_matrix(q, proj);
-        for i in 0..m.nrows() {
-            m[(i, i)] -= s;
-        }
-        linalg::positive_definite_real(&m)
+        let m = self.projected_real_matrix(q, proj);
+        let shifted = DMatrix::from_fn(m.nrows(), m.ncols(), |i, j| {
+            m[(i, j)] - if i == j { s } else { 0.0 }
+        });
+        (!linalg::positive_definite_real(&shifted)).then(|| linalg::min_eigenvalue_real(&m))
     }
 
     /// The smallest eigenvalue on the symmetric subspace.

@@ -178,14 +178,9 @@ pub fn mean_field_maxima(lattice: &Lattice) -> Vec<(Wavevector, f64)> {
             .map(|k| (std::f64::consts::TAU * k as f64 / n as f64).cos())
             .collect();
         let n_i = n as i64;
-        (0..grid.len())
-            .map(|code| {
-                let mut k = [0i64; 3];
-                let mut c = code;
-                for slot in k.iter_mut().take(d) {
-                    *slot = (c % n) as i64;
-                    c /= n;
-                }
+        grid.iter()
+            .map(|q| {
+                let k = q.map(|c| (c * n as f64).round() as i64);
                 lattice
                     .bonds()
                     .iter()
@@ -325,12 +320,15 @@ impl Candidate {
             None => qh.lowest_value(&self.q),
         }
     }
-    /// Whether the watched matrix (the symmetric subspace at a real q) has every
-    /// eigenvalue above `s`, by one factorisation; false where that is not cheap to tell.
-    fn exceeds(&self, qh: &QHessian, s: f64) -> bool {
+    /// [`Candidate::value`], or NaN where one factorisation shows every eigenvalue of
+    /// the watched matrix above `s` (on a symmetric subspace at a real q; elsewhere the
+    /// value is always computed).
+    fn value_unless_above(&self, qh: &QHessian, s: f64) -> f64 {
         match &self.projection {
-            Some(p) if is_real(&self.q) => qh.projected_exceeds(&self.q, p, s),
-            _ => false,
+            Some(p) if is_real(&self.q) => qh
+                .projected_lowest_value_below(&self.q, p, s)
+                .unwrap_or(f64::NAN),
+            _ => self.value(qh),
         }
     }
 
@@ -401,8 +399,8 @@ impl QProbe<'_, '_> {
             // (less the tie margin) cannot be the lowest: its eigenvalue is not needed
             // (NaN: not computed), unless it may be negative.
             let floor = best - TIE.max(1e-15 * best.abs());
-            let mut v = if floor > 0.0 && c.exceeds(&qh, floor) {
-                f64::NAN
+            let mut v = if floor > 0.0 {
+                c.value_unless_above(&qh, floor)
             } else {
                 c.value(&qh)
             };
